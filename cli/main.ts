@@ -1,0 +1,38 @@
+import { CliError } from "./errors.ts";
+
+/** Every command lives in `cli/commands/<name>.ts` and exports `run(argv): Promise<number>`. */
+const COMMANDS: Record<string, string> = {
+  ttl: "exact TTL map(s) of wavefront(s) on a setup, JSON on stdout",
+  train: "train a surrogate model locally and write a .stpm file",
+  eval: "evaluate a .stpm model for wavefront(s), JSON on stdout",
+};
+
+const USAGE = [
+  "usage: stillpoint <command> [options]",
+  "",
+  ...Object.entries(COMMANDS).map(([name, text]) => `  ${name.padEnd(8)} ${text}`),
+  "",
+  "Surrogate results are engineering estimates within the model's validity range;",
+  "hardware decisions rest on the exact calculation and the mission's own review.",
+].join("\n");
+
+export async function main(argv: string[]): Promise<number> {
+  const [name, ...rest] = argv;
+  if (!name || name === "--help" || name === "-h") {
+    process.stdout.write(USAGE + "\n");
+    return name ? 0 : 2;
+  }
+  if (!(name in COMMANDS)) {
+    process.stderr.write(`stillpoint: unknown command "${name}" (try --help)\n`);
+    return 2;
+  }
+  try {
+    const command = (await import(`./commands/${name}.ts`)) as { run(argv: string[]): Promise<number> };
+    return await command.run(rest);
+  } catch (error) {
+    const message = error instanceof Error ? error.message : String(error);
+    process.stderr.write(`stillpoint ${name}: ${message.split("\n")[0]}\n`);
+    if (!(error instanceof CliError) && process.env.STILLPOINT_DEBUG) console.error(error);
+    return 1;
+  }
+}
