@@ -1,0 +1,23 @@
+import type { Knex } from "knex";
+import { getConfig, type AppConfig } from "../config";
+
+/** Connection settings for the configured database, or for another database on the same server. */
+export function knexConfig(
+  overrides: { databaseName?: string; config?: AppConfig } = {},
+): Knex.Config {
+  const { database } = overrides.config ?? getConfig();
+  return {
+    client: "mysql2",
+    connection: {
+      host: database.host,
+      port: database.port,
+      user: database.user,
+      password: database.password,
+      database: overrides.databaseName ?? database.name,
+      charset: "utf8mb4",
+      timezone: "Z",
+      supportBigNumbers: true,
+    },
+    pool: { min: 0, max: database.poolMax },
+  };
+}
