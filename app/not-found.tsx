@@ -1,0 +1,13 @@
+import Link from "next/link";
+
+export default function NotFound() {
+  return (
+    <main className="mx-auto max-w-form px-4 py-24">
+      <h1 className="text-lg font-semibold">Not found</h1>
+      <p className="mt-2 text-sm text-muted">There is nothing at this address.</p>
+      <Link href="/" className="mt-4 inline-block text-sm text-accent underline">
+        Back to the catalogue
+      </Link>
+    </main>
+  );
+}

@@ -1,0 +1,30 @@
+"use client";
+
+import Link from "next/link";
+import { usePathname } from "next/navigation";
+
+export function NavLinks({ items }: { items: { href: string; label: string }[] }) {
+  const pathname = usePathname();
+  return (
+    <nav aria-label="Workspace">
+      <ul className="flex gap-1">
+        {items.map((item) => {
+          const current = item.href === "/" ? pathname === "/" : pathname.startsWith(item.href);
+          return (
+            <li key={item.href}>
+              <Link
+                href={item.href}
+                aria-current={current ? "page" : undefined}
+                className={`block rounded px-2 py-1 text-sm ${
+                  current ? "bg-accent text-accent-ink" : "text-ink hover:bg-sunken"
+                }`}
+              >
+                {item.label}
+              </Link>
+            </li>
+          );
+        })}
+      </ul>
+    </nav>
+  );
+}

@@ -1,0 +1,19 @@
+import { hasAnyRole, type Role } from "@/lib/auth/roles";
+
+export interface NavItem {
+  href: string;
+  label: string;
+  /** Shown to people holding any of these roles. */
+  roles: readonly Role[];
+}
+
+// Only pages that exist are listed; each page checks the same roles on the server.
+export const NAV_ITEMS: readonly NavItem[] = [
+  { href: "/", label: "Catalogue", roles: ["viewer", "modeller", "reviewer", "admin"] },
+  { href: "/account", label: "Account", roles: ["viewer", "modeller", "reviewer", "admin"] },
+  { href: "/people", label: "People", roles: ["admin"] },
+];
+
+export function navItemsFor(roles: readonly Role[]): NavItem[] {
+  return NAV_ITEMS.filter((item) => hasAnyRole(roles, item.roles));
+}

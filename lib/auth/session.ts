@@ -1,0 +1,33 @@
+import { getServerSession } from "next-auth";
+import { cache } from "react";
+import { getUser, type UserSummary } from "../db/users";
+import { ForbiddenError, UnauthenticatedError } from "../errors";
+import { authOptions } from "./options";
+import { hasAnyRole, type Role } from "./roles";
+
+/**
+ * The signed-in person, read fresh from the database so that removed accounts and changed
+ * roles take effect at once, not when the session token expires. One lookup per request.
+ */
+export const getSessionUser = cache(async (): Promise<UserSummary | null> => {
+  const session = await getServerSession(authOptions());
+  const id = session?.user?.id;
+  if (typeof id !== "number" || !Number.isInteger(id)) return null;
+  return getUser(id);
+});
+
+/** For route handlers, server actions and the data-access layer: throws 401 when signed out. */
+export async function requireUser(): Promise<UserSummary> {
+  const user = await getSessionUser();
+  if (!user) throw new UnauthenticatedError();
+  return user;
+}
+
+/** Throws 403 unless the signed-in person holds at least one of the roles. */
+export async function requireRole(...roles: Role[]): Promise<UserSummary> {
+  const user = await requireUser();
+  if (!hasAnyRole(user.roles, roles)) {
+    throw new ForbiddenError(`This needs the ${roles.join(" or ")} role.`);
+  }
+  return user;
+}

@@ -1,0 +1,41 @@
+/**
+ * Domain errors: thrown by the data-access layer and the auth helpers, mapped to HTTP
+ * problem details in one place (lib/api/problem.ts).
+ */
+export abstract class DomainError extends Error {
+  abstract readonly status: number;
+  abstract readonly title: string;
+  constructor(message: string) {
+    super(message);
+    this.name = new.target.name;
+  }
+}
+
+export class UnauthenticatedError extends DomainError {
+  readonly status = 401;
+  readonly title = "Sign-in required";
+  constructor(message = "Sign in to use this resource.") {
+    super(message);
+  }
+}
+
+export class ForbiddenError extends DomainError {
+  readonly status = 403;
+  readonly title = "Not permitted";
+}
+
+export class NotFoundError extends DomainError {
+  readonly status = 404;
+  readonly title = "Not found";
+}
+
+export class ConflictError extends DomainError {
+  readonly status = 409;
+  readonly title = "Conflict";
+}
+
+/** A wavefront or request lies outside the validity range a model version states. */
+export class OutsideValidityRangeError extends DomainError {
+  readonly status = 422;
+  readonly title = "Outside the validity range";
+}
