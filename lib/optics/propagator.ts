@@ -1,4 +1,5 @@
 import { foldedKernels, foldedTransform, type FoldedKernels } from "./matrixFourier.ts";
+import { phasorsInto } from "./phasor.ts";
 import { apertureTransmission, pupilCoordinates } from "./pupil.ts";
 import { thetaGridNrad, validateSetup } from "./setup.ts";
 import type { OpticalSetup } from "./types.ts";
@@ -6,6 +7,12 @@ import { ZernikeTerm } from "./zernike.ts";
 
 /** 1 m/rad of optical path per pointing angle is 1e3 pm/nrad. */
 const PM_PER_NRAD_PER_M_PER_RAD = 1e3;
+
+/** The four mirrored members of a pupil sample: (+x, +y), (-x, +y), (+x, -y), (-x, -y). */
+const QUADRANTS = 4;
+/** Sign of x and of y in each quadrant, in the order above. */
+const SIGN_X = [1, -1, 1, -1] as const;
+const SIGN_Y = [1, 1, -1, -1] as const;
 
 /**
  * Exact far-field tilt-to-length coupling of a clipped Gaussian beam with wavefront error.
@@ -17,8 +24,8 @@ const PM_PER_NRAD_PER_M_PER_RAD = 1e3;
  * Conventions: PHYSICS.md sections 1-3. Everything that does not depend on the
  * wavefront (Zernike basis, amplitude, kernels) is computed once here.
  *
- * Pupil samples are stored by mirrored pairs (x, -x) of each row: the right half
- * holds the basis, the left half follows from each term's parity in x.
+ * Pupil samples are kept by quadrant: the basis is stored for x, y >= 0 only, and
+ * each term's parity in x and in y gives its values in the other three quadrants.
  */
 export class TtlPropagator {
   readonly setup: OpticalSetup;
@@ -28,28 +35,28 @@ export class TtlPropagator {
   readonly waveNumberPerM: number;
 
   private readonly samples: number;
+  /** Mirrored pairs per axis, ceil(N / 2); pair q holds +x at index N - pairs + q, -x at pairs - 1 - q. */
   private readonly pairs: number;
-  /** Pairs of row iy that touch the aperture: q < rowPairs[iy]. */
+  /** Pairs of row pair r that touch the aperture. */
   private readonly rowPairs: Int32Array;
-  /** Offset of row iy in the packed per-pair arrays. */
+  /** Offset of row pair r in the quarter-pupil arrays. */
   private readonly rowOffset: Int32Array;
-  private readonly cellCount: number;
-  private readonly ampRight: Float64Array;
-  private readonly ampLeft: Float64Array;
+  private readonly quarterCells: number;
+  /** T exp(-r^2/w^2) per quadrant, [quadrant][cell]; zero where a member duplicates the centre row or column. */
+  private readonly amplitude: Float64Array;
   private readonly fresnelPhase: Float64Array;
-  /** Phase per nm of each term at the right-hand cell of each pair, [term][cell]. */
+  /** Phase per nm of each term in the first quadrant, [term][cell]. */
   private readonly basis: Float64Array;
-  /** +1 when a term is even in x (Z(-x, y) = Z(x, y)), -1 when odd. */
-  private readonly parity: Int8Array;
+  /** Parity class of each term: bit 0 set when odd in x, bit 1 when odd in y. */
+  private readonly parityClass: Uint8Array;
   private readonly kernels: FoldedKernels;
 
   // Work buffers, reused by every call (one propagator per thread).
-  private readonly evenPhase: Float64Array;
-  private readonly oddPhase: Float64Array;
-  private readonly uRightRe: Float64Array;
-  private readonly uRightIm: Float64Array;
-  private readonly uLeftRe: Float64Array;
-  private readonly uLeftIm: Float64Array;
+  /** Phase sums per parity class, [class][cell]. */
+  private readonly classPhase: Float64Array;
+  private readonly phase: Float64Array;
+  private readonly uRe: Float64Array;
+  private readonly uIm: Float64Array;
   private readonly foldPRe: Float64Array;
   private readonly foldPIm: Float64Array;
   private readonly foldQRe: Float64Array;
@@ -86,36 +93,46 @@ export class TtlPropagator {
     const transmission = apertureTransmission(radius, n);
     const pairs = Math.ceil(n / 2);
     this.pairs = pairs;
-    const right = (q: number) => n - pairs + q; // index of the +x member of pair q
-    const left = (q: number) => pairs - 1 - q; // index of the -x member (the same cell at an odd grid's centre)
-    const xPair = Float64Array.from({ length: pairs }, (_, q) => x[right(q)]);
+    const plus = (q: number) => n - pairs + q;
+    const minus = (q: number) => pairs - 1 - q; // equals plus(0) at an odd grid's centre
+    const xPair = Float64Array.from({ length: pairs }, (_, q) => x[plus(q)]);
 
-    this.rowPairs = new Int32Array(n);
-    this.rowOffset = new Int32Array(n + 1);
-    for (let iy = 0; iy < n; iy++) {
+    this.rowPairs = new Int32Array(pairs);
+    this.rowOffset = new Int32Array(pairs + 1);
+    for (let r = 0; r < pairs; r++) {
       let count = 0;
-      for (let q = 0; q < pairs; q++) if (transmission[iy * n + right(q)] > 0) count = q + 1;
-      this.rowPairs[iy] = count;
-      this.rowOffset[iy + 1] = this.rowOffset[iy] + count;
+      for (let q = 0; q < pairs; q++) if (transmission[plus(r) * n + plus(q)] > 0) count = q + 1;
+      this.rowPairs[r] = count;
+      this.rowOffset[r + 1] = this.rowOffset[r] + count;
     }
-    const cells = this.rowOffset[n];
-    this.cellCount = cells;
-    this.ampRight = new Float64Array(cells);
-    this.ampLeft = new Float64Array(cells);
+    const cells = this.rowOffset[pairs];
+    this.quarterCells = cells;
+    this.amplitude = new Float64Array(QUADRANTS * cells);
     this.fresnelPhase = new Float64Array(cells);
     this.basis = new Float64Array(terms.length * cells);
-    this.parity = Int8Array.from(terms, (t) => ((t.m >= 0) === (t.m % 2 === 0) ? 1 : -1));
+    this.parityClass = Uint8Array.from(terms, (t) => {
+      // x -> -x maps phi to pi - phi: cos(m phi) keeps its sign for even m, sin(|m| phi) for odd |m|.
+      // y -> -y maps phi to -phi: cos terms are even, sin terms odd.
+      const oddInX = t.m >= 0 ? Math.abs(t.m) % 2 === 1 : Math.abs(t.m) % 2 === 0;
+      const oddInY = t.m < 0;
+      return (oddInX ? 1 : 0) | (oddInY ? 2 : 0);
+    });
     const phasePerNm = k * 1e-9;
-    for (let iy = 0; iy < n; iy++) {
-      for (let q = 0; q < this.rowPairs[iy]; q++) {
-        const cell = this.rowOffset[iy] + q;
-        const r2 = xPair[q] * xPair[q] + x[iy] * x[iy];
+    for (let r = 0; r < pairs; r++) {
+      const y = x[plus(r)];
+      for (let q = 0; q < this.rowPairs[r]; q++) {
+        const cell = this.rowOffset[r] + q;
+        const r2 = xPair[q] * xPair[q] + y * y;
         const gaussian = Math.exp(-r2 / (beamRadiusM * beamRadiusM));
-        this.ampRight[cell] = transmission[iy * n + right(q)] * gaussian;
-        this.ampLeft[cell] = right(q) === left(q) ? 0 : transmission[iy * n + left(q)] * gaussian;
+        for (let quadrant = 0; quadrant < QUADRANTS; quadrant++) {
+          const ix = SIGN_X[quadrant] > 0 ? plus(q) : minus(q);
+          const iy = SIGN_Y[quadrant] > 0 ? plus(r) : minus(r);
+          const duplicate = (SIGN_X[quadrant] < 0 && ix === plus(q)) || (SIGN_Y[quadrant] < 0 && iy === plus(r));
+          this.amplitude[quadrant * cells + cell] = duplicate ? 0 : transmission[iy * n + ix] * gaussian;
+        }
         this.fresnelPhase[cell] = (k * r2) / (2 * distanceM);
         const rho = Math.sqrt(r2) / radius;
-        const phi = Math.atan2(x[iy], xPair[q]);
+        const phi = Math.atan2(y, xPair[q]);
         for (let t = 0; t < terms.length; t++) this.basis[t * cells + cell] = phasePerNm * terms[t].at(rho, phi);
       }
     }
@@ -124,12 +141,10 @@ export class TtlPropagator {
     this.kernels = foldedKernels(k, thetaRad, xPair);
 
     const m = this.pointsPerAxis;
-    this.evenPhase = new Float64Array(cells);
-    this.oddPhase = new Float64Array(cells);
-    this.uRightRe = new Float64Array(cells);
-    this.uRightIm = new Float64Array(cells);
-    this.uLeftRe = new Float64Array(cells);
-    this.uLeftIm = new Float64Array(cells);
+    this.classPhase = new Float64Array(QUADRANTS * cells);
+    this.phase = new Float64Array(QUADRANTS * cells);
+    this.uRe = new Float64Array(QUADRANTS * cells);
+    this.uIm = new Float64Array(QUADRANTS * cells);
     this.foldPRe = new Float64Array(pairs);
     this.foldPIm = new Float64Array(pairs);
     this.foldQRe = new Float64Array(pairs);
@@ -187,51 +202,56 @@ export class TtlPropagator {
     return { x, y };
   }
 
-  /** Pupil field at both members of every pair: amplitude times exp(i (Fresnel + k W)). */
+  /** Pupil field in all four quadrants: amplitude times exp(i (Fresnel + k W)). */
   private pupilField(coefficientsNm: ArrayLike<number>): void {
-    const cells = this.cellCount;
-    const { evenPhase, oddPhase, basis, parity, fresnelPhase } = this;
-    evenPhase.set(fresnelPhase);
-    oddPhase.fill(0);
-    for (let t = 0; t < parity.length; t++) {
+    const cells = this.quarterCells;
+    const { classPhase, phase, basis, parityClass, fresnelPhase } = this;
+    classPhase.fill(0);
+    classPhase.set(fresnelPhase); // the Fresnel phase is even in x and y: class 0
+    for (let t = 0; t < parityClass.length; t++) {
       const a = coefficientsNm[t];
       if (a === 0) continue;
-      const target = parity[t] > 0 ? evenPhase : oddPhase;
+      const target = parityClass[t] * cells;
       const base = t * cells;
-      for (let i = 0; i < cells; i++) target[i] += a * basis[base + i];
+      for (let i = 0; i < cells; i++) classPhase[target + i] += a * basis[base + i];
     }
-    const { ampRight, ampLeft, uRightRe, uRightIm, uLeftRe, uLeftIm } = this;
+    const oddX = cells, oddY = 2 * cells, oddXY = 3 * cells;
     for (let i = 0; i < cells; i++) {
-      const right = evenPhase[i] + oddPhase[i];
-      const left = evenPhase[i] - oddPhase[i];
-      uRightRe[i] = ampRight[i] * Math.cos(right);
-      uRightIm[i] = ampRight[i] * Math.sin(right);
-      uLeftRe[i] = ampLeft[i] * Math.cos(left);
-      uLeftIm[i] = ampLeft[i] * Math.sin(left);
+      const even = classPhase[i], ox = classPhase[oddX + i], oy = classPhase[oddY + i], oxy = classPhase[oddXY + i];
+      phase[i] = even + ox + oy + oxy; // (+x, +y)
+      phase[cells + i] = even - ox + oy - oxy; // (-x, +y)
+      phase[2 * cells + i] = even + ox - oy - oxy; // (+x, -y)
+      phase[3 * cells + i] = even - ox - oy + oxy; // (-x, -y)
     }
+    phasorsInto(this.amplitude, phase, this.uRe, this.uIm, QUADRANTS * cells);
   }
 
   /** Two folded transform stages: rows (x) then columns (y), with the moments for the derivatives. */
   private farField(): void {
     const n = this.samples;
     const m = this.pointsPerAxis;
-    const { kernels, foldPRe, foldPIm, foldQRe, foldQIm, gRe, gIm, gxRe, gxIm } = this;
-    const { uRightRe, uRightIm, uLeftRe, uLeftIm } = this;
+    const pairs = this.pairs;
+    const cells = this.quarterCells;
+    const { kernels, foldPRe, foldPIm, foldQRe, foldQIm, gRe, gIm, gxRe, gxIm, uRe, uIm } = this;
     // Stage 1: G[p][iy] = sum_ix U[iy][ix] K[p][ix], Gx the same with x_ix (stored transposed).
-    for (let iy = 0; iy < n; iy++) {
-      const count = this.rowPairs[iy];
-      const base = this.rowOffset[iy];
-      for (let q = 0; q < count; q++) {
-        const i = base + q;
-        foldPRe[q] = uRightRe[i] + uLeftRe[i];
-        foldPIm[q] = uRightIm[i] + uLeftIm[i];
-        foldQRe[q] = uRightRe[i] - uLeftRe[i];
-        foldQIm[q] = uRightIm[i] - uLeftIm[i];
+    for (let r = 0; r < pairs; r++) {
+      const count = this.rowPairs[r];
+      const base = this.rowOffset[r];
+      for (let half = 0; half < 2; half++) {
+        const iy = half === 0 ? n - pairs + r : pairs - 1 - r;
+        if (half === 1 && iy === n - pairs + r) break; // an odd grid's centre row is done once
+        const right = (2 * half) * cells + base;
+        const left = right + cells;
+        for (let q = 0; q < count; q++) {
+          foldPRe[q] = uRe[right + q] + uRe[left + q];
+          foldPIm[q] = uIm[right + q] + uIm[left + q];
+          foldQRe[q] = uRe[right + q] - uRe[left + q];
+          foldQIm[q] = uIm[right + q] - uIm[left + q];
+        }
+        foldedTransform(kernels, count, foldPRe, foldPIm, foldQRe, foldQIm, gRe, gIm, gxRe, gxIm, n, iy);
       }
-      foldedTransform(kernels, count, foldPRe, foldPIm, foldQRe, foldQIm, gRe, gIm, gxRe, gxIm, n, iy);
     }
     // Stage 2, per far-field column px: E = sum_iy K[py][iy] G[px][iy], E_y with y_iy, E_x from Gx.
-    const pairs = this.pairs;
     const { eRe, eIm, exRe, exIm, eyRe, eyIm } = this;
     for (let px = 0; px < m; px++) {
       const line = px * n;
@@ -242,7 +262,7 @@ export class TtlPropagator {
     }
   }
 
-  /** Even/odd parts of one column line[0 .. n-1] over its mirrored pairs (centre pairs with zero). */
+  /** Even/odd parts of one column line[0 .. n-1] over its mirrored pairs (the centre pairs with zero). */
   private foldLine(re: Float64Array, im: Float64Array, line: number, n: number, pairs: number): void {
     const { foldPRe, foldPIm, foldQRe, foldQIm } = this;
     for (let q = 0; q < pairs; q++) {

@@ -1,0 +1,11 @@
+export type { FarFieldGrid, FlatTtlMaps, OpticalSetup, TtlMap, Wavefront, ZernikeOrdering, ZernikeSet } from "./types.ts";
+export {
+  MAX_ANSI_INDEX, MAX_NOLL_INDEX, MAX_RADIAL_ORDER, ZernikeTerm, ansiToNoll, nollToAnsi, nollToOrders, ordersToNoll,
+  radialCoefficients, toNollIndex, toNollIndices, zernike, type ZernikeOrders,
+} from "./zernike.ts";
+export { MAX_PUPIL_SAMPLES, MIN_PUPIL_SAMPLES, thetaGridNrad, validateSetup } from "./setup.ts";
+export { apertureTransmission, cellFractionInsideCircle, pupilCoordinates } from "./pupil.ts";
+export { phasorsInto } from "./phasor.ts";
+export { TtlPropagator } from "./propagator.ts";
+export { nollCoefficients, unionNollIndices, wavefrontToVector } from "./wavefront.ts";
+export { peakAbsTtl, toTtlMap } from "./ttlMap.ts";
