@@ -173,15 +173,7 @@ export class TtlPropagator {
    * @throws RangeError when the coefficient count is wrong or a coefficient is not finite.
    */
   ttlInto(coefficientsNm: ArrayLike<number>, outX: Float64Array, outY: Float64Array, outOffset = 0): void {
-    const terms = this.nollIndices.length;
-    if (coefficientsNm.length !== terms) {
-      throw new RangeError(`expected ${terms} coefficients, got ${coefficientsNm.length}`);
-    }
-    for (let t = 0; t < terms; t++) {
-      if (!Number.isFinite(coefficientsNm[t])) {
-        throw new RangeError(`coefficient of Noll term ${this.nollIndices[t]} must be a finite number`);
-      }
-    }
+    this.checkCoefficients(coefficientsNm);
     this.pupilField(coefficientsNm);
     this.farField();
     const nodes = this.nodeCount;
@@ -194,12 +186,37 @@ export class TtlPropagator {
     }
   }
 
+  /**
+   * Far-field amplitude `E(theta)` itself (arbitrary common scale), row-major `iy * M + ix`:
+   * for intensity checks such as the Airy pattern.
+   * @throws RangeError as {@link ttlInto}.
+   */
+  fieldInto(coefficientsNm: ArrayLike<number>, outRe: Float64Array, outIm: Float64Array): void {
+    this.checkCoefficients(coefficientsNm);
+    this.pupilField(coefficientsNm);
+    this.farField();
+    outRe.set(this.eRe);
+    outIm.set(this.eIm);
+  }
+
   /** TTL maps of one wavefront as new arrays; see {@link ttlInto}. */
   ttl(coefficientsNm: ArrayLike<number>): { x: Float64Array; y: Float64Array } {
     const x = new Float64Array(this.nodeCount);
     const y = new Float64Array(this.nodeCount);
     this.ttlInto(coefficientsNm, x, y);
     return { x, y };
+  }
+
+  private checkCoefficients(coefficientsNm: ArrayLike<number>): void {
+    const terms = this.nollIndices.length;
+    if (coefficientsNm.length !== terms) {
+      throw new RangeError(`expected ${terms} coefficients, got ${coefficientsNm.length}`);
+    }
+    for (let t = 0; t < terms; t++) {
+      if (!Number.isFinite(coefficientsNm[t])) {
+        throw new RangeError(`coefficient of Noll term ${this.nollIndices[t]} must be a finite number`);
+      }
+    }
   }
 
   /** Pupil field in all four quadrants: amplitude times exp(i (Fresnel + k W)). */

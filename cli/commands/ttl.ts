@@ -1,0 +1,36 @@
+import { thetaGridNrad, toTtlMap, unionNollIndices, validateSetup, wavefrontToVector, type Wavefront } from "../../lib/optics/index.ts";
+import { propagateMany } from "../../lib/parallel/index.ts";
+import { CliError } from "../errors.ts";
+import { parseOptions, readJsonFile, writeJson } from "../io.ts";
+
+/** Below this many wavefronts, starting worker threads costs more than it saves. */
+const PARALLEL_FROM = 64;
+
+/** `stillpoint ttl --setup setup.json --wfe wfe.json`: exact TTL map(s) as JSON on stdout. */
+export async function run(argv: string[]): Promise<number> {
+  const options = parseOptions(argv, ["setup", "wfe"], ["threads"]);
+  const setup = validateSetup(await readJsonFile(options.setup, "setup"));
+  const input = await readJsonFile(options.wfe, "wavefront");
+  const single = !Array.isArray(input);
+  const wavefronts = (single ? [input] : input) as Wavefront[];
+  if (wavefronts.length === 0) throw new CliError("wavefront file holds an empty array");
+
+  const noll = unionNollIndices(wavefronts);
+  const terms = Math.max(noll.length, 1);
+  const indices = noll.length > 0 ? noll : [1]; // a wavefront with no terms: piston at zero
+  const coefficients = new Float64Array(wavefronts.length * terms);
+  wavefronts.forEach((wavefront, s) => coefficients.set(wavefrontToVector(wavefront, indices), s * terms));
+
+  const threads = options.threads === undefined ? undefined : Number(options.threads);
+  if (threads !== undefined && (!Number.isInteger(threads) || threads < 1)) {
+    throw new CliError("--threads must be a positive integer");
+  }
+  const maps = await propagateMany(setup, indices, coefficients, {
+    threads: threads ?? (wavefronts.length >= PARALLEL_FROM ? undefined : 1),
+  });
+  const nodes = maps.pointsPerAxis * maps.pointsPerAxis;
+  const theta = thetaGridNrad(setup.farField);
+  const out = wavefronts.map((_, s) => toTtlMap(theta, maps.x, maps.y, s * nodes));
+  await writeJson(single ? out[0] : out);
+  return 0;
+}
