@@ -1,0 +1,65 @@
+// npm run bench:optics: exact TTL maps for the demo setup (128 x 128 pupil, 25 x 25 nodes, Noll 4-36),
+// on one thread and on all threads, beside the same computation in NumPy.
+import { availableParallelism } from "node:os";
+import { TtlPropagator, type OpticalSetup } from "../lib/optics/index.ts";
+import { propagateMany } from "../lib/parallel/index.ts";
+import { randomDesign } from "../lib/surrogate/designs.ts";
+import { runNumpyScript } from "./numpy.ts";
+
+const SETUP: OpticalSetup = {
+  wavelengthNm: 1064, apertureDiameterM: 0.26, beamRadiusM: 0.115, distanceM: 2.2e9,
+  farField: { halfAngleNrad: 60, pointsPerAxis: 25 }, pupilSamples: 128,
+};
+const TERMS = Array.from({ length: 33 }, (_, i) => i + 4);
+const J = TERMS.length;
+
+function bestOf<T>(repeats: number, work: () => T): number {
+  let best = Number.POSITIVE_INFINITY;
+  for (let r = 0; r < repeats; r++) {
+    const start = performance.now();
+    work();
+    best = Math.min(best, performance.now() - start);
+  }
+  return best;
+}
+
+const fmt = (v: number, digits = 3) => v.toFixed(digits);
+
+let start = performance.now();
+const propagator = new TtlPropagator(SETUP, TERMS);
+const setupMs = performance.now() - start;
+
+const singleMaps = 400;
+const wavefronts = randomDesign(J, { size: singleMaps, maxRmsNm: 30, seed: 1 });
+const x = new Float64Array(propagator.nodeCount), y = new Float64Array(propagator.nodeCount);
+const sweep = () => {
+  for (let s = 0; s < singleMaps; s++) propagator.ttlInto(wavefronts.subarray(s * J, (s + 1) * J), x, y);
+};
+sweep(); // warm-up: let the JIT optimise the hot loops
+const singleMs = bestOf(5, sweep) / singleMaps;
+
+const threads = availableParallelism();
+const manyMaps = 3000;
+const many = randomDesign(J, { size: manyMaps, maxRmsNm: 30, seed: 2 });
+start = performance.now();
+await propagateMany(SETUP, TERMS, many, { threads });
+const parallelTotalMs = performance.now() - start;
+start = performance.now();
+await propagateMany(SETUP, TERMS, many.subarray(0, J * threads), { threads });
+const startupMs = performance.now() - start;
+const parallelMs = (parallelTotalMs - startupMs) / manyMaps;
+
+console.log("bench:optics — exact TTL maps, demo setup (128 x 128 pupil, 25 x 25 nodes, Noll 4-36, 30 nm RMS)");
+console.log(`  per-setup precompute          ${fmt(setupMs, 1)} ms`);
+console.log(`  one thread                    ${fmt(singleMs)} ms/map   (target <= 3 ms)`);
+console.log(`  ${threads} threads, ${manyMaps} maps          ${fmt(parallelTotalMs / manyMaps)} ms/map with worker start-up (${fmt(startupMs, 0)} ms)`);
+console.log(`  ${threads} threads, steady state       ${fmt(parallelMs)} ms/map   speed-up ${fmt(singleMs / parallelMs, 2)} x (target ~2 x)`);
+
+const numpy = runNumpyScript("optics_numpy.py", ["300"]);
+if (numpy.result) {
+  const numpyMs = numpy.result.msPerMap;
+  console.log(`  NumPy (plain matrix products) ${fmt(numpyMs)} ms/map`);
+  console.log(`  ratio one thread / NumPy      ${fmt(singleMs / numpyMs, 2)} x`);
+} else {
+  console.log(`  NumPy comparison skipped: ${numpy.reason}`);
+}
