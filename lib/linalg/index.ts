@@ -1,0 +1,5 @@
+export { householderQr, applyQTransposeInPlace, solveUpperTriangular, rDiagonal } from "./householderQr.ts";
+export type { HouseholderQr } from "./householderQr.ts";
+export { conditionNumber } from "./conditionNumber.ts";
+export { packColumns, multiplyPackedInto, PANEL_WIDTH } from "./matrixProduct.ts";
+export type { PackedColumns } from "./matrixProduct.ts";
