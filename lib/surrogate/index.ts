@@ -1,0 +1,29 @@
+export { SplitMix64 } from "./prng.ts";
+export {
+  checkNollIndices, compileTerms, featureMatrix, featuresInto, firstOrderTerms, fullTermCount, fullTerms, secondOrderTerms,
+  termLabel, type CompiledTerms, type SurrogateOrder, type Term,
+} from "./terms.ts";
+export {
+  axesAndPairsDesign, axesAndPairsSize, axesAndPairsStepNm, checkSampleSet, randomDesign, sampleRmsNm,
+  type DesignName, type RandomDesignOptions, type SampleSet,
+} from "./designs.ts";
+export { fitCoefficients, MAX_CONDITION_NUMBER, type FitResult } from "./fit.ts";
+export { validityFromSamples, validityWarnings, type TermBound, type ValidityRange } from "./validity.ts";
+export { residualStatistics, type ErrorSummary, type ResidualStatistics, type RmsBinSummary } from "./statistics.ts";
+export { SURROGATE_NOTICE, type FitReport, type Provenance, type PruningReport, type SurrogateModel } from "./model.ts";
+export {
+  checkCoefficients, compiledTermsOf, evaluateAtOffsets, evaluateBatch, evaluateBatchInto, evaluateInto, evaluateMap,
+  packedCoefficients, type SurrogateMap,
+} from "./evaluate.ts";
+export { axisWeights, interpolateMap, type AxisWeights } from "./interpolate.ts";
+export {
+  pruneModel, splitAxes, termSignificance, type PruneOptions, type PruneResult, type SignificanceOptions, type TermSignificance,
+} from "./significance.ts";
+export {
+  coefficientsSha256, decodeModel, encodeModel, MODEL_FILE_SIGNATURE, MODEL_FORMAT_VERSION, ModelFileError, roundToStored,
+} from "./modelFile.ts";
+export { sha256Hex } from "./checksum.ts";
+export {
+  sampleSetSha256, trainSurrogate, type ExactPropagator, type GeneratingSetSpec, type TrainingPhase, type TrainingRequest,
+  type TrainingResult,
+} from "./train.ts";

@@ -1,0 +1,162 @@
+import { toNollIndices } from "../optics/zernike.ts";
+import { validateSetup } from "../optics/setup.ts";
+import type { OpticalSetup, ZernikeSet } from "../optics/types.ts";
+import { sha256Hex } from "./checksum.ts";
+import {
+  axesAndPairsDesign,
+  axesAndPairsStepNm,
+  checkSampleSet,
+  randomDesign,
+  type RandomDesignOptions,
+  type SampleSet,
+} from "./designs.ts";
+import { evaluateBatch } from "./evaluate.ts";
+import { fitCoefficients } from "./fit.ts";
+import type { Provenance, SurrogateModel } from "./model.ts";
+import { roundToStored } from "./modelFile.ts";
+import { splitAxes } from "./significance.ts";
+import { residualStatistics } from "./statistics.ts";
+import { compileTerms, fullTerms, type SurrogateOrder } from "./terms.ts";
+import { validityFromSamples } from "./validity.ts";
+
+export type GeneratingSetSpec =
+  | ({ design: "random" } & RandomDesignOptions)
+  | { design: "axes-and-pairs"; maxRmsNm: number }
+  /** Samples computed elsewhere: coefficients in the model's Noll order, with their exact maps. */
+  | { design: "uploaded"; set: SampleSet };
+
+export interface TrainingRequest {
+  setup: OpticalSetup;
+  zernike: ZernikeSet;
+  order: SurrogateOrder;
+  generatingSet: GeneratingSetSpec;
+  /** Seeded random validation set, propagated exactly; null trains without residual statistics. */
+  validationSet: RandomDesignOptions | null;
+  softwareVersion: string;
+  /** ISO 8601 time stamp to record (the caller's clock; the core reads none). */
+  createdAt: string;
+}
+
+/** Exact maps for `S x J` coefficients in `nollIndices` order: flat `x`, `y` of `S x M^2` values, pm/nrad. */
+export type ExactPropagator = (
+  nollIndices: number[],
+  coefficientsNm: Float64Array,
+  onProgress: (done: number, total: number) => void,
+) => Promise<{ x: Float64Array; y: Float64Array }>;
+
+export type TrainingPhase = "generating set" | "fit" | "validation set" | "statistics";
+
+export interface TrainingResult {
+  model: SurrogateModel;
+  generatingSet: SampleSet;
+  validationSet: SampleSet | null;
+}
+
+/** SHA-256 (hex) of a sample set's coefficients then x and y maps, as Float64 little-endian bytes. */
+export function sampleSetSha256(set: SampleSet): string {
+  const parts = [set.coefficientsNm, set.x, set.y];
+  const bytes = new Uint8Array(parts.reduce((n, p) => n + p.length * 8, 0));
+  const view = new DataView(bytes.buffer);
+  let offset = 0;
+  for (const part of parts) for (let i = 0; i < part.length; i++, offset += 8) view.setFloat64(offset, part[i], true);
+  return sha256Hex(bytes);
+}
+
+/**
+ * Train a surrogate: build (or take) the generating set, propagate it exactly, fit all nodes and axes with one
+ * factorisation, round the coefficients to their stored precision, then propagate a separate seeded
+ * validation set and compute the residual statistics of the stored model against it.
+ *
+ * @param propagate the exact method (injected, so the core stays free of threads and I/O)
+ * @param onProgress called with the phase and its progress
+ * @throws {RangeError|TypeError} for an invalid setup, Zernike set, order or design, and from `fitCoefficients`
+ * Source: PHYSICS.md section 5.
+ */
+export async function trainSurrogate(
+  request: TrainingRequest,
+  propagate: ExactPropagator,
+  onProgress: (phase: TrainingPhase, done: number, total: number) => void = () => {},
+): Promise<TrainingResult> {
+  const setup = validateSetup(request.setup);
+  const nollIndices = toNollIndices(request.zernike);
+  const J = nollIndices.length;
+  const M = setup.farField.pointsPerAxis;
+  const nodes = M * M;
+  const terms = fullTerms(nollIndices, request.order);
+  const compiled = compileTerms(terms, nollIndices);
+  const spec = request.generatingSet;
+
+  let generatingSet: SampleSet;
+  const provenance: Provenance = {
+    design: spec.design,
+    size: 0,
+    maxRmsNm: null,
+    stepNm: null,
+    seed: null,
+    uploadedSha256: null,
+    validationSet: request.validationSet ? { ...request.validationSet } : null,
+    softwareVersion: request.softwareVersion,
+    createdAt: request.createdAt,
+  };
+  if (spec.design === "uploaded") {
+    checkSampleSet(spec.set, J, M);
+    generatingSet = spec.set;
+    provenance.uploadedSha256 = sampleSetSha256(spec.set);
+  } else {
+    let coefficientsNm: Float64Array;
+    if (spec.design === "random") {
+      coefficientsNm = randomDesign(J, spec);
+      provenance.seed = spec.seed;
+    } else if (spec.design === "axes-and-pairs") {
+      provenance.stepNm = axesAndPairsStepNm(spec.maxRmsNm);
+      coefficientsNm = axesAndPairsDesign(J, provenance.stepNm);
+    } else {
+      throw new RangeError(`unknown generating-set design ${JSON.stringify((spec as { design: unknown }).design)}`);
+    }
+    provenance.maxRmsNm = spec.maxRmsNm;
+    const count = coefficientsNm.length / J;
+    // Refuse a design that cannot be fitted before spending time on exact maps.
+    if (count < compiled.count) {
+      throw new RangeError(`generating set has ${count} samples but the model has ${compiled.count} terms; at least ${compiled.count} are needed`);
+    }
+    const maps = await propagate(nollIndices, coefficientsNm, (done, total) => onProgress("generating set", done, total));
+    generatingSet = { coefficientsNm, x: maps.x, y: maps.y, count, pointsPerAxis: M };
+    checkSampleSet(generatingSet, J, M);
+  }
+  provenance.size = generatingSet.count;
+
+  onProgress("fit", 0, 1);
+  const fit = fitCoefficients(compiled, terms, generatingSet.coefficientsNm, J, generatingSet.x, generatingSet.y, nodes);
+  onProgress("fit", 1, 1);
+
+  const model: SurrogateModel = {
+    setup,
+    zernike: { ordering: request.zernike.ordering, indices: [...request.zernike.indices] },
+    nollIndices,
+    order: request.order,
+    terms,
+    pointsPerAxis: M,
+    coefficients: roundToStored(fit.coefficients),
+    validity: validityFromSamples(nollIndices, generatingSet.coefficientsNm),
+    provenance,
+    fit: {
+      samples: generatingSet.count,
+      conditionNumber: fit.conditionNumber,
+      trainingResidualRmsPmPerNrad: fit.trainingResidualRmsPmPerNrad,
+    },
+    statistics: null,
+    pruning: null,
+  };
+
+  let validationSet: SampleSet | null = null;
+  if (request.validationSet) {
+    const coefficientsNm = randomDesign(J, request.validationSet);
+    const maps = await propagate(nollIndices, coefficientsNm, (done, total) => onProgress("validation set", done, total));
+    validationSet = { coefficientsNm, x: maps.x, y: maps.y, count: request.validationSet.size, pointsPerAxis: M };
+    onProgress("statistics", 0, 1);
+    const predicted = splitAxes(evaluateBatch(model, coefficientsNm), validationSet.count, nodes);
+    model.statistics = residualStatistics(validationSet, J, predicted);
+    onProgress("statistics", 1, 1);
+  }
+  return { model, generatingSet, validationSet };
+}
