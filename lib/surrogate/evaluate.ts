@@ -103,15 +103,19 @@ export function evaluateInto(model: SurrogateModel, coefficientsNm: ArrayLike<nu
   const P = 2 * model.pointsPerAxis * model.pointsPerAxis;
   if (out.length !== P) throw new RangeError("out must have 2 M^2 entries");
   featuresInto(terms, coefficientsNm, f);
-  const c = interleaved(model, entry);
-  const blocks = f.length / TERM_BLOCK;
+  accumulateInterleaved(interleaved(model, entry), f, P, out);
+}
+
+/** `out[p] = sum_t f[t] c[t][p]` over the interleaved layout; a small function of its own so the JIT keeps it tight. */
+function accumulateInterleaved(c: Float64Array, f: Float64Array, P: number, out: Float64Array): void {
+  const blocks = f.length >> 3;
   out.fill(0);
   let i = 0;
   for (let block = 0; block < blocks; block++) {
-    const t = block * TERM_BLOCK;
+    const t = block << 3;
     const f0 = f[t], f1 = f[t + 1], f2 = f[t + 2], f3 = f[t + 3];
     const f4 = f[t + 4], f5 = f[t + 5], f6 = f[t + 6], f7 = f[t + 7];
-    for (let p = 0; p < P; p++, i += TERM_BLOCK) {
+    for (let p = 0; p < P; p++, i += 8) {
       out[p] +=
         f0 * c[i] + f1 * c[i + 1] + (f2 * c[i + 2] + f3 * c[i + 3]) +
         (f4 * c[i + 4] + f5 * c[i + 5] + (f6 * c[i + 6] + f7 * c[i + 7]));

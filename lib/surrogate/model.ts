@@ -40,7 +40,7 @@ export interface PruningReport {
   droppedTtlBoundPmPerNrad: number;
   /** The same bound times the jitter, pm. */
   droppedNoiseBoundPm: number;
-  /** Largest |pruned - parent| seen on the validation set within the budget, pm/nrad (null without a set). */
+  /** Largest |pruned - parent| on the validation wavefronts scaled into the budget, pm/nrad (null without a set). */
   droppedTtlSeenPmPerNrad: number | null;
 }
 

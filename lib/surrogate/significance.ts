@@ -72,8 +72,9 @@ export interface PruneResult {
  * A pruned model: the parent's coefficients for the terms whose noise bound reaches the threshold (the
  * constant term always stays). Because the kept coefficients are unchanged, the TTL the dropped terms could
  * have added is bounded by the sum of their bounds (triangle inequality), reported in `pruning`. With a
- * validation set the bound is checked: the largest |pruned - parent| over its wavefronts within the budget is
- * recorded, and the pruned model's residual statistics against the exact maps replace the parent's.
+ * validation set the bound is checked: the largest |pruned - parent| over its wavefronts (each scaled into the
+ * budget when outside it) is recorded, and the pruned model's residual statistics against the exact maps
+ * replace the parent's.
  *
  * @throws {RangeError} "thresholdPm must be a finite number >= 0" and those of {@link termSignificance}
  */
@@ -109,16 +110,20 @@ export function pruneModel(model: SurrogateModel, options: PruneOptions, validat
   };
   if (validation) {
     const J = model.nollIndices.length;
-    const full = evaluateBatch(model, validation.coefficientsNm);
-    const reduced = evaluateBatch(pruned, validation.coefficientsNm);
+    // The bound holds for any wavefront within the budget: check it on the validation wavefronts, each scaled
+    // into the budget when it lies outside (same direction in coefficient space, total RMS r).
     const rms = sampleRmsNm(validation.coefficientsNm, J);
-    let seen = 0;
+    const inBudget = validation.coefficientsNm.slice();
     for (let s = 0; s < validation.count; s++) {
-      if (rms[s] > options.budgetRmsNm) continue;
-      for (let p = s * P; p < (s + 1) * P; p++) seen = Math.max(seen, Math.abs(full[p] - reduced[p]));
+      const factor = rms[s] > options.budgetRmsNm ? options.budgetRmsNm / rms[s] : 1;
+      for (let k = 0; k < J; k++) inBudget[s * J + k] *= factor;
     }
+    const full = evaluateBatch(model, inBudget);
+    const reduced = evaluateBatch(pruned, inBudget);
+    let seen = 0;
+    for (let p = 0; p < full.length; p++) seen = Math.max(seen, Math.abs(full[p] - reduced[p]));
     pruned.pruning!.droppedTtlSeenPmPerNrad = seen;
-    pruned.statistics = residualStatistics(validation, J, splitAxes(reduced, validation.count, P / 2));
+    pruned.statistics = residualStatistics(validation, J, splitAxes(evaluateBatch(pruned, validation.coefficientsNm), validation.count, P / 2));
   }
   return { model: pruned, kept, dropped };
 }

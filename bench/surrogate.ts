@@ -1,0 +1,124 @@
+// npm run bench:surrogate: training time for the default demo spec, one full-map evaluation (595 terms and a
+// pruned model), and batched throughput on one thread and on all threads, beside the same work in NumPy.
+// Prints figures against the targets of the surrogate issue; it asserts nothing.
+import { spawnSync } from "node:child_process";
+import { mkdtempSync, rmSync, writeFileSync } from "node:fs";
+import { availableParallelism, tmpdir } from "node:os";
+import { join } from "node:path";
+import { fileURLToPath } from "node:url";
+import type { OpticalSetup } from "../lib/optics/index.ts";
+import { propagateMany } from "../lib/parallel/index.ts";
+import { BatchEvaluator } from "../lib/surrogate/batchThreads.ts";
+import {
+  encodeModel, evaluateBatch, evaluateInto, pruneModel, randomDesign, trainSurrogate, type SurrogateModel, type TrainingPhase,
+} from "../lib/surrogate/index.ts";
+import { runNumpyScript } from "./numpy.ts";
+
+const SETUP: OpticalSetup = {
+  wavelengthNm: 1064, apertureDiameterM: 0.26, beamRadiusM: 0.115, distanceM: 2.2e9,
+  farField: { halfAngleNrad: 60, pointsPerAxis: 25 }, pupilSamples: 128,
+};
+const NOLL = Array.from({ length: 33 }, (_, i) => i + 4);
+const J = NOLL.length;
+const SPEC = {
+  setup: SETUP,
+  zernike: { ordering: "noll" as const, indices: NOLL },
+  order: 2 as const,
+  generatingSet: { design: "random" as const, size: 1300, maxRmsNm: 35, seed: 7 },
+  validationSet: { size: 200, maxRmsNm: 35, seed: 8 },
+};
+/** Pruning for the demo budget (DESIGN.md: 30 nm RMS, 8 nrad jitter), dropping terms below 0.1 pm of noise. */
+const PRUNE = { budgetRmsNm: 30, jitterNrad: 8, thresholdPm: 0.1 };
+
+const fmt = (v: number, digits = 3) => v.toFixed(digits);
+
+/** Median time of `calls` back-to-back calls, taken over `rounds` rounds after a warm-up. */
+function perCallMs(rounds: number, calls: number, work: () => void): number {
+  for (let i = 0; i < calls; i++) work();
+  const times: number[] = [];
+  for (let r = 0; r < rounds; r++) {
+    const start = performance.now();
+    for (let i = 0; i < calls; i++) work();
+    times.push((performance.now() - start) / calls);
+  }
+  return times.sort((a, b) => a - b)[Math.floor(rounds / 2)];
+}
+
+// 1. Training, in process, phase by phase.
+const phaseStart = new Map<TrainingPhase, number>();
+const phaseEnd = new Map<TrainingPhase, number>();
+let start = performance.now();
+const trained = await trainSurrogate(
+  { ...SPEC, softwareVersion: "bench", createdAt: new Date().toISOString() },
+  async (noll, coefficientsNm, onProgress) => {
+    const maps = await propagateMany(SETUP, noll, coefficientsNm, { onProgress });
+    return { x: maps.x, y: maps.y };
+  },
+  (phase, done, total) => {
+    if (!phaseStart.has(phase)) phaseStart.set(phase, performance.now());
+    if (done === total) phaseEnd.set(phase, performance.now());
+  },
+);
+const bytes = encodeModel(trained.model);
+const trainMs = performance.now() - start;
+const phaseMs = (phase: TrainingPhase) => (phaseEnd.get(phase) ?? 0) - (phaseStart.get(phase) ?? 0);
+const model: SurrogateModel = trained.model;
+
+// 2. The same through the command line, process start to file written.
+const dir = mkdtempSync(join(tmpdir(), "stillpoint-bench-"));
+writeFileSync(join(dir, "spec.json"), JSON.stringify(SPEC));
+start = performance.now();
+const cli = spawnSync(process.execPath, [fileURLToPath(new URL("../bin/stillpoint.mjs", import.meta.url)), "train", "--spec", "spec.json", "--out", "model.stpm"], { cwd: dir, encoding: "utf8" });
+const cliMs = performance.now() - start;
+rmSync(dir, { recursive: true, force: true });
+
+// 3. One full map, full and pruned.
+const { model: pruned } = pruneModel(model, PRUNE, trained.validationSet!);
+const one = randomDesign(J, { size: 1, maxRmsNm: 30, seed: 5 });
+const out = new Float64Array(2 * 25 * 25);
+const fullMs = perCallMs(9, 2000, () => evaluateInto(model, one, out));
+const prunedMs = perCallMs(9, 2000, () => evaluateInto(pruned, one, out));
+
+// 4. Batched throughput.
+const BATCH = 6000;
+const many = randomDesign(J, { size: BATCH, maxRmsNm: 30, seed: 6 });
+evaluateBatch(model, many.subarray(0, 200 * J));
+start = performance.now();
+evaluateBatch(model, many);
+const oneThreadRate = BATCH / ((performance.now() - start) / 1000);
+const threads = availableParallelism();
+const evaluator = new BatchEvaluator(model, threads);
+await evaluator.evaluate(many.subarray(0, 400 * J)); // workers started and warm
+let best = Infinity;
+for (let r = 0; r < 3; r++) {
+  start = performance.now();
+  await evaluator.evaluate(many);
+  best = Math.min(best, performance.now() - start);
+}
+await evaluator.close();
+const allThreadsRate = BATCH / (best / 1000);
+
+const stats = model.statistics!.overall;
+const prunedStats = pruned.statistics!.overall;
+const mark = (ok: boolean) => (ok ? "met" : "NOT met");
+console.log("bench:surrogate — demo spec (Noll 4-36, second order, 1300 random + 200 validation, 128 x 128 pupil, 25 x 25 nodes)");
+console.log(`  training in process            ${fmt(trainMs / 1000, 2)} s  (generating set ${fmt(phaseMs("generating set") / 1000, 2)} s, fit ${fmt(phaseMs("fit") / 1000, 2)} s, validation ${fmt(phaseMs("validation set") / 1000, 2)} s, statistics ${fmt(phaseMs("statistics") / 1000, 2)} s)`);
+console.log(`  training via CLI, end to end   ${fmt(cliMs / 1000, 2)} s  target < 15 s: ${mark(cli.status === 0 && cliMs < 15000)}${cli.status === 0 ? "" : ` (exit ${cli.status}: ${cli.stderr.trim().split("\n").at(-1)})`}`);
+console.log(`  model: ${model.terms.length} terms, condition number ${fmt(model.fit.conditionNumber, 1)}, file ${fmt(bytes.length / 1e6, 2)} MB, validation max error ${fmt(100 * stats.maxErrorRelativeToPeak, 2)} % of peak`);
+console.log(`  one full map, ${model.terms.length} terms         ${fmt(fullMs, 4)} ms  target < 0.5 ms: ${mark(fullMs < 0.5)}`);
+console.log(`  one full map, pruned ${pruned.terms.length} terms  ${fmt(prunedMs, 4)} ms  speed-up ${fmt(fullMs / prunedMs, 2)} x, target >= 3 x: ${mark(fullMs / prunedMs >= 3)}`);
+console.log(`    pruning at ${PRUNE.thresholdPm} pm (budget ${PRUNE.budgetRmsNm} nm, jitter ${PRUNE.jitterNrad} nrad): dropped-term bound ${fmt(pruned.pruning!.droppedTtlBoundPmPerNrad, 4)} pm/nrad, seen ${fmt(pruned.pruning!.droppedTtlSeenPmPerNrad!, 4)} pm/nrad; pruned validation max error ${fmt(100 * prunedStats.maxErrorRelativeToPeak, 2)} % of peak`);
+console.log(`  batched, 1 thread              ${fmt(oneThreadRate, 0)} maps/s`);
+console.log(`  batched, ${threads} threads             ${fmt(allThreadsRate, 0)} maps/s  target >= 3000: ${mark(allThreadsRate >= 3000)}`);
+
+const numpy = runNumpyScript("surrogate_numpy.py", [String(model.terms.length), String(pruned.terms.length)]);
+if (numpy.result) {
+  const n = numpy.result;
+  console.log(`  NumPy ${numpy.result.numpyVersion ?? ""} (OpenBLAS, its own threads):`);
+  console.log(`    fit (QR + solve, 1300 x ${model.terms.length}, 1250 rhs) ${fmt(n.fitMs, 0)} ms   ours ${fmt(phaseMs("fit"), 0)} ms  ratio ${fmt(phaseMs("fit") / n.fitMs, 1)} x`);
+  console.log(`    one full map           ${fmt(n.evalMs, 4)} ms   ratio ours / NumPy ${fmt(fullMs / n.evalMs, 2)} x`);
+  console.log(`    one pruned map         ${fmt(n.prunedEvalMs, 4)} ms   ratio ours / NumPy ${fmt(prunedMs / n.prunedEvalMs, 2)} x`);
+  console.log(`    batched                ${fmt(n.batchMapsPerSecond, 0)} maps/s   ratio NumPy / ours ${fmt(n.batchMapsPerSecond / allThreadsRate, 1)} x`);
+} else {
+  console.log(`  NumPy comparison skipped: ${numpy.reason}`);
+}
