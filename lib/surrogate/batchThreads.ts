@@ -1,6 +1,6 @@
 import { availableParallelism } from "node:os";
 import { Worker } from "node:worker_threads";
-import { checkCoefficients, evaluateBatchInto } from "./evaluate.ts";
+import { checkCoefficients, checkFinite, evaluateBatchInto } from "./evaluate.ts";
 import type { SurrogateModel } from "./model.ts";
 
 const WORKER_URL = new URL("./batchWorker.mjs", import.meta.url);
@@ -80,6 +80,7 @@ export class BatchEvaluator {
     });
     evaluateBatchInto(this.model, inputView, outputView, 0, Math.min(samples, share));
     await Promise.all(jobs);
+    checkFinite(outputView);
     return outputView;
   }
 

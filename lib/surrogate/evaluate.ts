@@ -140,6 +140,7 @@ export function evaluateMap(model: SurrogateModel, coefficientsNm: ArrayLike<num
   const nodes = model.pointsPerAxis * model.pointsPerAxis;
   const out = new Float64Array(2 * nodes);
   evaluateInto(model, coefficientsNm, out);
+  checkFinite(out);
   return { x: out.subarray(0, nodes), y: out.subarray(nodes), warnings: validityWarnings(model.validity, coefficientsNm) };
 }
 
@@ -186,7 +187,18 @@ export function evaluateBatch(model: SurrogateModel, coefficientsNm: ArrayLike<n
   const samples = checkCoefficients(model, coefficientsNm, true);
   const out = new Float64Array(samples * 2 * model.pointsPerAxis * model.pointsPerAxis);
   evaluateBatchInto(model, coefficientsNm, out);
+  checkFinite(out);
   return out;
+}
+
+/**
+ * Refuse a result that overflowed (coefficients so large that a product of two is beyond double range).
+ * @throws {RangeError} "wavefront coefficients are too large: the surrogate TTL is not finite"
+ */
+export function checkFinite(values: Float64Array): void {
+  for (let i = 0; i < values.length; i++) {
+    if (!Number.isFinite(values[i])) throw new RangeError("wavefront coefficients are too large: the surrogate TTL is not finite");
+  }
 }
 
 /**

@@ -4,7 +4,9 @@ import { tmpdir } from "node:os";
 import { join } from "node:path";
 import { fileURLToPath } from "node:url";
 import { beforeAll, describe, expect, it } from "vitest";
-import { decodeModel, evaluateMap, SURROGATE_NOTICE } from "../../lib/surrogate/index.ts";
+import { thetaGridNrad, toTtlMap } from "../../lib/optics/index.ts";
+import { propagateMany } from "../../lib/parallel/index.ts";
+import { axesAndPairsDesign, decodeModel, evaluateMap, SURROGATE_NOTICE } from "../../lib/surrogate/index.ts";
 
 const root = fileURLToPath(new URL("../..", import.meta.url));
 const dir = mkdtempSync(join(tmpdir(), "stillpoint-cli-"));
@@ -72,6 +74,39 @@ describe("stillpoint train", () => {
     expect(readdirSync(dir).filter((f) => f.endsWith(".part"))).toEqual([]);
     const missing = stillpoint("train", "--spec", "nowhere.json", "--out", "x.stpm");
     expect(missing.stderr).toBe("stillpoint train: cannot read spec file nowhere.json (ENOENT)\n");
+  });
+
+  it("trains from an uploaded generating set and leaves nothing behind when the file cannot be written", async () => {
+    // An uploaded set: the axes-and-pairs wavefronts (written in Noll indices, while the model's set is ANSI)
+    // with exact maps computed here by the propagator.
+    const noll = [5, 4, 6, 7, 8];
+    const design = axesAndPairsDesign(5, 8);
+    const maps = await propagateMany(setup, noll, design, { threads: 1 });
+    const theta = thetaGridNrad(setup.farField);
+    const samples = Array.from({ length: 21 }, (_, s) => ({
+      wfe: { ordering: "noll", coefficientsNm: Object.fromEntries(noll.map((j, k) => [String(j), design[s * 5 + k]])) },
+      map: toTtlMap(theta, maps.x, maps.y, s * 81),
+    }));
+    write("set.json", { samples });
+    write("uploaded.json", { ...spec, generatingSet: { design: "uploaded", file: "set.json" }, validationSet: null });
+    const ok = stillpoint("train", "--spec", "uploaded.json", "--out", "uploaded.stpm");
+    expect(ok.code, ok.stderr).toBe(0);
+    const model = decodeModel(readFileSync(join(dir, "uploaded.stpm")));
+    expect(model.provenance.design).toBe("uploaded");
+    expect(model.provenance.uploadedSha256).toMatch(/^[0-9a-f]{64}$/);
+    expect(model.fit.trainingResidualRmsPmPerNrad).toBe(0); // square design: exactly determined
+    expect(ok.stderr).toContain("no validation set: no residual statistics");
+
+    write("short-set.json", { samples: [{ ...samples[0], map: { ...samples[0].map, ttlYPmPerNrad: samples[0].map.ttlYPmPerNrad.slice(1) } }] });
+    write("short.json", { ...spec, generatingSet: { design: "uploaded", file: "short-set.json" } });
+    expect(stillpoint("train", "--spec", "short.json", "--out", "y.stpm").stderr).toBe(
+      "stillpoint train: generating set " + join(dir, "short-set.json") + ", sample 0: map ttlYPmPerNrad must be 9 rows of 9 numbers\n",
+    );
+
+    const unwritable = stillpoint("train", "--spec", "uploaded.json", "--out", "no-such-dir/model.stpm");
+    expect(unwritable.code).toBe(1);
+    expect(unwritable.stderr).toMatch(/stillpoint train: cannot write model file no-such-dir\/model\.stpm \(ENOENT\)\n$/);
+    expect(readdirSync(dir).filter((f) => f.endsWith(".part"))).toEqual([]);
   });
 });
 

@@ -1,7 +1,7 @@
 import { describe, expect, it } from "vitest";
 import {
   axisWeights, evaluateAtOffsets, evaluateBatch, evaluateMap, interpolateMap, randomDesign, residualStatistics,
-  secondOrderTerms, validityFromSamples, validityWarnings, featureMatrix, compileTerms,
+  secondOrderTerms, validityFromSamples, validityWarnings, featureMatrix, compileTerms, checkSampleSet,
 } from "../../lib/surrogate/index.ts";
 import { chosenCoefficients, smallSetup, syntheticModel } from "./helpers.ts";
 
@@ -58,6 +58,16 @@ describe("evaluateMap and evaluateBatch", () => {
     );
     expect(evaluateBatch(model, [])).toHaveLength(0);
   });
+
+  it("refuses huge coefficients whose products overflow instead of returning infinities", () => {
+    // 1e200^2 = 1e400 is beyond the IEEE 754 double range (max ~1.8e308).
+    expect(() => evaluateMap(model, [1e200, 0, 0, 0])).toThrow(
+      new RangeError("wavefront coefficients are too large: the surrogate TTL is not finite"),
+    );
+    expect(() => evaluateBatch(model, [0, 0, 0, 1e200])).toThrow(
+      new RangeError("wavefront coefficients are too large: the surrogate TTL is not finite"),
+    );
+  });
 });
 
 describe("bicubic interpolation between nodes", () => {
@@ -95,6 +105,26 @@ describe("bicubic interpolation between nodes", () => {
     expect(at.x[0]).toBeCloseTo(map.x[12], 13); // centre node
     expect(at.y[2]).toBeCloseTo(map.y[20], 13); // node (ix 0, iy 4)
     expect(at.x[1]).toBeCloseTo(interpolateMap(map.x, 50, M, 13.7, -22.1), 13);
+  });
+});
+
+describe("checkSampleSet (uploaded generating sets)", () => {
+  const good = () => ({ coefficientsNm: new Float64Array(2 * 4), x: new Float64Array(2 * nodes), y: new Float64Array(2 * nodes), count: 2, pointsPerAxis: M });
+  it("accepts a well-formed set and names what is wrong with a bad one", () => {
+    expect(() => checkSampleSet(good(), 4, M)).not.toThrow();
+    expect(() => checkSampleSet({ ...good(), count: 0 }, 4, M)).toThrow(new RangeError("sample set must not be empty"));
+    expect(() => checkSampleSet({ ...good(), coefficientsNm: new Float64Array(7) }, 4, M)).toThrow(
+      new RangeError("coefficient matrix must have count x J = 2 x 4 entries"),
+    );
+    expect(() => checkSampleSet({ ...good(), y: new Float64Array(nodes) }, 4, M)).toThrow(
+      new RangeError("maps must have count x M x M = 2 x 5 x 5 entries per axis"),
+    );
+    const nan = good();
+    nan.coefficientsNm[5] = NaN;
+    expect(() => checkSampleSet(nan, 4, M)).toThrow(new RangeError("sample set contains a non-finite coefficient (sample 1)"));
+    const inf = good();
+    inf.y[nodes + 3] = -Infinity;
+    expect(() => checkSampleSet(inf, 4, M)).toThrow(new RangeError("sample set contains a non-finite TTL value (sample 1)"));
   });
 });
 

@@ -63,6 +63,14 @@ describe("householderQr least squares", () => {
     expect(conditionNumber(householderQr([1, 2, 2, 4, 3, 6], 3, 2))).toBeGreaterThan(1e14);
   });
 
+  it("handles huge and tiny entries without overflow (scaled Householder norm)", () => {
+    // diag(1e200, 1e-200) x = (2e200, 3e-200) -> x = (2, 3), exact in closed form; a naive sum of squares of
+    // 1e200 would overflow to Infinity (1e400 > 1.8e308).
+    const x = leastSquares([[1e200, 0], [0, 1e-200]], [[2e200], [3e-200]]);
+    expect(x[0]).toBeCloseTo(2, 14);
+    expect(x[1]).toBeCloseTo(3, 14);
+  });
+
   it("rejects bad shapes and non-finite entries with exact messages", () => {
     expect(() => householderQr([1, 2], 1, 2)).toThrow(new RangeError("matrix must have rows >= cols >= 1"));
     expect(() => householderQr([1, 2, 3], 2, 2)).toThrow(new RangeError("matrix length must equal rows * cols"));
