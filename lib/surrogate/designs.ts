@@ -25,6 +25,29 @@ export interface RandomDesignOptions {
  * Comm. ACM 2(4), 19-20 (1959); PHYSICS.md section 5.
  */
 export function randomDesign(termCountJ: number, options: RandomDesignOptions): Float64Array {
+  return randomDirections(termCountJ, options, (random) => Math.pow(random.nextDouble(), 1 / termCountJ));
+}
+
+/**
+ * Samples for validation across amplitudes: a direction uniform on the sphere (as {@link randomDesign}) and a
+ * total RMS uniform in [0, maxRmsNm]. In many dimensions a uniform ball puts nearly every sample close to its
+ * surface (for J = 33, 99 % lie above 0.87 maxRmsNm), which would leave the lower RMS bins of the validation
+ * statistics empty; uniform amplitudes fill every bin equally.
+ *
+ * @returns row-major `size x J` coefficients, nm RMS
+ * @throws {RangeError} as {@link randomDesign}
+ * Source: Muller (1959) for the direction; the radial law is this product's choice for validation.
+ */
+export function randomAmplitudeDesign(termCountJ: number, options: RandomDesignOptions): Float64Array {
+  return randomDirections(termCountJ, options, (random) => random.nextDouble());
+}
+
+/** Random directions from normal deviates, scaled to `maxRmsNm * radius(random)`. */
+function randomDirections(
+  termCountJ: number,
+  options: RandomDesignOptions,
+  radius: (random: SplitMix64) => number,
+): Float64Array {
   const { size, maxRmsNm, seed } = options;
   if (!Number.isInteger(termCountJ) || termCountJ < 1) throw new RangeError("J must be a positive integer");
   if (!Number.isInteger(size) || size < 1) throw new RangeError("size must be a positive integer");
@@ -42,8 +65,7 @@ export function randomDesign(termCountJ: number, options: RandomDesignOptions): 
         sumSquares += g * g;
       }
     } while (sumSquares === 0);
-    const radius = maxRmsNm * Math.pow(random.nextDouble(), 1 / termCountJ);
-    const scale = radius / Math.sqrt(sumSquares);
+    const scale = (maxRmsNm * radius(random)) / Math.sqrt(sumSquares);
     for (let k = 0; k < termCountJ; k++) out[row + k] *= scale;
   }
   return out;

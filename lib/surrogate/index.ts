@@ -4,7 +4,7 @@ export {
   termLabel, type CompiledTerms, type SurrogateOrder, type Term,
 } from "./terms.ts";
 export {
-  axesAndPairsDesign, axesAndPairsSize, axesAndPairsStepNm, checkSampleSet, randomDesign, sampleRmsNm,
+  axesAndPairsDesign, axesAndPairsSize, axesAndPairsStepNm, checkSampleSet, randomAmplitudeDesign, randomDesign, sampleRmsNm,
   type DesignName, type RandomDesignOptions, type SampleSet,
 } from "./designs.ts";
 export { fitCoefficients, MAX_CONDITION_NUMBER, type FitResult } from "./fit.ts";

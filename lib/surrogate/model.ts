@@ -16,6 +16,7 @@ export interface Provenance {
   seed: number | null;
   /** SHA-256 (hex) of an uploaded set's coefficients and maps as Float64 little-endian bytes. */
   uploadedSha256: string | null;
+  /** Validation set: random directions with total RMS uniform in [0, maxRmsNm] (`randomAmplitudeDesign`). */
   validationSet: { size: number; maxRmsNm: number; seed: number } | null;
   softwareVersion: string;
   /** ISO 8601 time of training, supplied by the caller. */

@@ -6,6 +6,7 @@ import {
   axesAndPairsDesign,
   axesAndPairsStepNm,
   checkSampleSet,
+  randomAmplitudeDesign,
   randomDesign,
   type RandomDesignOptions,
   type SampleSet,
@@ -30,7 +31,10 @@ export interface TrainingRequest {
   zernike: ZernikeSet;
   order: SurrogateOrder;
   generatingSet: GeneratingSetSpec;
-  /** Seeded random validation set, propagated exactly; null trains without residual statistics. */
+  /**
+   * Seeded validation set (random directions, total RMS uniform in [0, maxRmsNm]), propagated exactly;
+   * null trains without residual statistics.
+   */
   validationSet: RandomDesignOptions | null;
   softwareVersion: string;
   /** ISO 8601 time stamp to record (the caller's clock; the core reads none). */
@@ -65,7 +69,8 @@ export function sampleSetSha256(set: SampleSet): string {
 /**
  * Train a surrogate: build (or take) the generating set, propagate it exactly, fit all nodes and axes with one
  * factorisation, round the coefficients to their stored precision, then propagate a separate seeded
- * validation set and compute the residual statistics of the stored model against it.
+ * validation set (uniform in amplitude, see `randomAmplitudeDesign`) and compute the residual statistics of the
+ * stored model against it.
  *
  * @param propagate the exact method (injected, so the core stays free of threads and I/O)
  * @param onProgress called with the phase and its progress
@@ -150,7 +155,7 @@ export async function trainSurrogate(
 
   let validationSet: SampleSet | null = null;
   if (request.validationSet) {
-    const coefficientsNm = randomDesign(J, request.validationSet);
+    const coefficientsNm = randomAmplitudeDesign(J, request.validationSet);
     const maps = await propagate(nollIndices, coefficientsNm, (done, total) => onProgress("validation set", done, total));
     validationSet = { coefficientsNm, x: maps.x, y: maps.y, count: request.validationSet.size, pointsPerAxis: M };
     onProgress("statistics", 0, 1);
