@@ -79,10 +79,11 @@ start() {
   fi
   rm -f "$socket" "$pid_file"
   log "starting on 127.0.0.1:$port"
-  # setsid: the server leaves the caller's process group, so stopping the caller never takes it down by accident.
+  # setsid: the server leaves the caller's process group, so stopping the caller never takes it down by accident;
+  # 9>&-: it must not inherit the instance lock, or the next start or stop would wait for it forever.
   setsid mariadbd --no-defaults --user=root --datadir="$dir/data" --bind-address=127.0.0.1 --port="$port" \
     --socket="$socket" --pid-file="$pid_file" --log-error="$dir/error.log" \
-    --max-allowed-packet=256M --skip-name-resolve </dev/null >/dev/null 2>&1 &
+    --max-allowed-packet=256M --skip-name-resolve </dev/null >/dev/null 2>&1 9>&- &
   local waited=0
   until mariadb-admin --no-defaults --socket="$socket" -uroot ping >/dev/null 2>&1; do
     sleep 0.1
@@ -135,6 +136,11 @@ status() {
     exit 3
   fi
 }
+
+# One start or stop at a time per instance (npm start and npm test may run side by side).
+mkdir -p "$data_root"
+exec 9>"$data_root/mariadb-$instance.lock"
+flock 9
 
 case "$command_name" in
   start) start ;;
