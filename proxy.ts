@@ -14,5 +14,5 @@ export async function proxy(request: NextRequest) {
 
 export const config = {
   // Everything except the sign-in page, API routes (they answer 401 themselves), and static files.
-  matcher: ["/((?!sign-in|api/|_next/static|_next/image|favicon\\.ico|robots\\.txt).*)"],
+  matcher: ["/((?!sign-in|api/|_next/static|_next/image|favicon\\.ico|icon\\.svg|robots\\.txt).*)"],
 };
