@@ -36,39 +36,126 @@ export function householderQr(matrix: ArrayLike<number>, rows: number, cols: num
     }
   }
   const tau = new Float64Array(cols);
-  for (let k = 0; k < cols; k++) {
-    const base = k * rows;
-    // Scaled norm of x = A[k:, k] (avoids overflow for huge entries).
-    let scale = 0;
-    for (let i = k; i < rows; i++) scale = Math.max(scale, Math.abs(a[base + i]));
-    if (scale === 0) {
-      tau[k] = 0;
-      continue;
-    }
-    let sumSquares = 0;
-    for (let i = k; i < rows; i++) {
-      const x = a[base + i] / scale;
-      sumSquares += x * x;
-    }
-    const alpha = a[base + k];
-    const norm = scale * Math.sqrt(sumSquares);
-    const beta = alpha >= 0 ? -norm : norm;
-    const tauK = (beta - alpha) / beta;
-    const inverse = 1 / (alpha - beta);
-    for (let i = k + 1; i < rows; i++) a[base + i] *= inverse;
-    a[base + k] = beta;
-    tau[k] = tauK;
-    // Apply H_k to the trailing columns: A[k:, j] -= tau (v^T A[k:, j]) v.
-    for (let j = k + 1; j < cols; j++) {
-      const cj = j * rows;
-      let dot = a[cj + k];
-      for (let i = k + 1; i < rows; i++) dot += a[base + i] * a[cj + i];
-      const s = tauK * dot;
-      a[cj + k] -= s;
-      for (let i = k + 1; i < rows; i++) a[cj + i] -= s * a[base + i];
-    }
+  const qr: HouseholderQr = { rows, cols, factors: a, tau };
+  for (let k0 = 0; k0 < cols; k0 += BLOCK) {
+    const kb = Math.min(BLOCK, cols - k0);
+    // Factor the panel with the plain algorithm, then update the trailing columns at once (compact WY).
+    for (let k = k0; k < k0 + kb; k++) reflectColumn(a, rows, tau, k, k0 + kb);
+    if (k0 + kb < cols) applyBlockToTrailingColumns(qr, k0, kb);
   }
   return { rows, cols, factors: a, tau };
+}
+
+/** Reflectors per block of the blocked algorithms. */
+const BLOCK = 32;
+
+/**
+ * Build reflector k from column k (LAPACK `dlarfg`) and apply it to columns k+1 .. end-1 (column-major, leading
+ * dimension `rows`).
+ */
+function reflectColumn(a: Float64Array, rows: number, tau: Float64Array, k: number, end: number): void {
+  const base = k * rows;
+  // Scaled norm of x = A[k:, k] (avoids overflow for huge entries).
+  let scale = 0;
+  for (let i = k; i < rows; i++) scale = Math.max(scale, Math.abs(a[base + i]));
+  if (scale === 0) {
+    tau[k] = 0;
+    return;
+  }
+  let sumSquares = 0;
+  for (let i = k; i < rows; i++) {
+    const x = a[base + i] / scale;
+    sumSquares += x * x;
+  }
+  const alpha = a[base + k];
+  const norm = scale * Math.sqrt(sumSquares);
+  const beta = alpha >= 0 ? -norm : norm;
+  const tauK = (beta - alpha) / beta;
+  const inverse = 1 / (alpha - beta);
+  for (let i = k + 1; i < rows; i++) a[base + i] *= inverse;
+  a[base + k] = beta;
+  tau[k] = tauK;
+  for (let j = k + 1; j < end; j++) {
+    const cj = j * rows;
+    let dot = a[cj + k];
+    for (let i = k + 1; i < rows; i++) dot += a[base + i] * a[cj + i];
+    const s = tauK * dot;
+    a[cj + k] -= s;
+    for (let i = k + 1; i < rows; i++) a[cj + i] -= s * a[base + i];
+  }
+}
+
+/** Compact WY form of reflectors k0 .. k0+kb-1: `H_k0 ... H_{k0+kb-1} = I - V T V^T` on rows k0 .. rows-1. */
+interface CompactWy {
+  /** Rows of V (rows - k0). */
+  m: number;
+  /** V, row-major `m x kb`, unit lower trapezoidal. */
+  v: Float64Array;
+  /** V^T, row-major `kb x m`. */
+  vt: Float64Array;
+  /** T, row-major `kb x kb`, upper triangular. */
+  t: Float64Array;
+}
+
+/** LAPACK `dlarft` (forward, column-wise): T[j][j] = tau_j, T[0:j, j] = -tau_j T[0:j, 0:j] (V[:, 0:j]^T v_j). */
+function compactWy(qr: HouseholderQr, k0: number, kb: number): CompactWy {
+  const { rows, factors, tau } = qr;
+  const m = rows - k0;
+  const v = new Float64Array(m * kb);
+  const vt = new Float64Array(kb * m);
+  for (let j = 0; j < kb; j++) {
+    const base = (k0 + j) * rows + k0;
+    v[j * kb + j] = 1;
+    vt[j * m + j] = 1;
+    for (let i = j + 1; i < m; i++) {
+      const value = factors[base + i];
+      v[i * kb + j] = value;
+      vt[j * m + i] = value;
+    }
+  }
+  const t = new Float64Array(kb * kb);
+  const z = new Float64Array(kb);
+  for (let j = 0; j < kb; j++) {
+    const tauJ = tau[k0 + j];
+    for (let i = 0; i < j; i++) {
+      let s = 0;
+      for (let r = j; r < m; r++) s += vt[i * m + r] * vt[j * m + r];
+      z[i] = s;
+    }
+    for (let i = 0; i < j; i++) {
+      let s = 0;
+      for (let l = i; l < j; l++) s += t[i * kb + l] * z[l];
+      t[i * kb + j] = -tauJ * s;
+    }
+    t[j * kb + j] = tauJ;
+  }
+  return { m, v, vt, t };
+}
+
+/**
+ * Apply `Q_block^T = I - V T^T V^T` to the columns after the block. Column-major storage makes those columns a
+ * row-major `A^T`, updated as `A^T -= (A^T V T) V^T` with two matrix products.
+ */
+function applyBlockToTrailingColumns(qr: HouseholderQr, k0: number, kb: number): void {
+  const { rows, cols, factors } = qr;
+  const { m, v, vt, t } = compactWy(qr, k0, kb);
+  const first = k0 + kb;
+  const n = cols - first;
+  const at = new Float64Array(n * m);
+  for (let j = 0; j < n; j++) at.set(factors.subarray((first + j) * rows + k0, (first + j + 1) * rows), j * m);
+  const w = new Float64Array(n * kb);
+  multiplyPackedInto(at, n, packColumns(v, m, kb), w);
+  // W <- W T (T upper triangular), right to left so that columns not yet updated are still the originals.
+  for (let r = 0; r < n; r++) {
+    const row = r * kb;
+    for (let j = kb - 1; j >= 0; j--) {
+      let s = 0;
+      for (let l = 0; l <= j; l++) s += w[row + l] * t[l * kb + j];
+      w[row + j] = s;
+    }
+  }
+  multiplyPackedInto(w, n, packColumns(vt, kb, m), at, 0, n, true);
+  for (let j = 0; j < n; j++) factors.set(at.subarray(j * m, (j + 1) * m), (first + j) * rows + k0);
 }
 
 /**
@@ -83,45 +170,14 @@ export function householderQr(matrix: ArrayLike<number>, rows: number, cols: num
  * transformations", SIAM J. Sci. Stat. Comput. 10(1), 53-57 (1989); LAPACK `dlarft`/`dlarfb`.
  */
 export function applyQTransposeInPlace(qr: HouseholderQr, rhs: Float64Array, rhsCount: number): void {
-  const { rows, cols, factors, tau } = qr;
+  const { rows, cols } = qr;
   if (!Number.isInteger(rhsCount) || rhsCount < 0 || rhs.length !== rows * rhsCount) {
     throw new RangeError("right-hand side length must equal rows * rhsCount");
   }
   if (rhsCount === 0) return;
-  const blockSize = 32;
-  for (let k0 = 0; k0 < cols; k0 += blockSize) {
-    const kb = Math.min(blockSize, cols - k0);
-    const m = rows - k0;
-    // V (m x kb, row-major) and its transpose, unit lower trapezoidal.
-    const v = new Float64Array(m * kb);
-    const vt = new Float64Array(kb * m);
-    for (let j = 0; j < kb; j++) {
-      const base = (k0 + j) * rows + k0;
-      v[j * kb + j] = 1;
-      vt[j * m + j] = 1;
-      for (let i = j + 1; i < m; i++) {
-        const value = factors[base + i];
-        v[i * kb + j] = value;
-        vt[j * m + i] = value;
-      }
-    }
-    // T upper triangular: T[j][j] = tau_j, T[0:j, j] = -tau_j T[0:j, 0:j] (V[:, 0:j]^T v_j).
-    const t = new Float64Array(kb * kb);
-    const z = new Float64Array(kb);
-    for (let j = 0; j < kb; j++) {
-      const tauJ = tau[k0 + j];
-      for (let i = 0; i < j; i++) {
-        let s = 0;
-        for (let r = j; r < m; r++) s += vt[i * m + r] * vt[j * m + r];
-        z[i] = s;
-      }
-      for (let i = 0; i < j; i++) {
-        let s = 0;
-        for (let l = i; l < j; l++) s += t[i * kb + l] * z[l];
-        t[i * kb + j] = -tauJ * s;
-      }
-      t[j * kb + j] = tauJ;
-    }
+  for (let k0 = 0; k0 < cols; k0 += BLOCK) {
+    const kb = Math.min(BLOCK, cols - k0);
+    const { m, v, vt, t } = compactWy(qr, k0, kb);
     const sub = rhs.subarray(k0 * rhsCount);
     const w = new Float64Array(kb * rhsCount);
     multiplyPackedInto(vt, kb, packColumns(sub, m, rhsCount), w);
@@ -142,30 +198,42 @@ export function applyQTransposeInPlace(qr: HouseholderQr, rhs: Float64Array, rhs
 }
 
 /**
- * Solve `R X = Y` for the upper-triangular `R` of a factorisation, row by row (back substitution),
- * where `Y` is the first `cols` rows of `Q^T B` (row-major, `rhsCount` columns).
+ * Solve `R X = Y` for the upper-triangular `R` of a factorisation, where `Y` is the first `cols` rows of
+ * `Q^T B` (row-major, `rhsCount` columns). Blocked back substitution: from the bottom, each block of 64 rows
+ * first subtracts `R[block, below] X[below]` with one matrix product, then solves its own small triangle row by row.
  *
  * @returns `X`, row-major `cols x rhsCount`
  * @throws {RangeError} "R is singular" when a diagonal entry is zero
- * Source: Golub and Van Loan, Matrix Computations, 4th ed., Algorithm 3.1.2 (row-oriented back substitution).
+ * Source: Golub and Van Loan, Matrix Computations, 4th ed., Algorithm 3.1.2 (row-oriented back substitution)
+ * and section 3.1.4 (block triangular solves).
  */
 export function solveUpperTriangular(qr: HouseholderQr, qtRhs: Float64Array, rhsCount: number): Float64Array {
   const { rows, cols, factors } = qr;
   if (qtRhs.length < cols * rhsCount) throw new RangeError("right-hand side length must equal rows * rhsCount");
-  const x = new Float64Array(cols * rhsCount);
-  for (let k = cols - 1; k >= 0; k--) {
-    const rk = k * rhsCount;
-    for (let c = 0; c < rhsCount; c++) x[rk + c] = qtRhs[rk + c];
-    for (let j = k + 1; j < cols; j++) {
-      const rkj = factors[j * rows + k];
-      if (rkj === 0) continue;
-      const rj = j * rhsCount;
-      for (let c = 0; c < rhsCount; c++) x[rk + c] -= rkj * x[rj + c];
+  for (let k = 0; k < cols; k++) if (factors[k * rows + k] === 0) throw new RangeError("R is singular");
+  const x = qtRhs.slice(0, cols * rhsCount);
+  const blockRows = 64;
+  for (let end = cols; end > 0; end -= blockRows) {
+    const start = Math.max(0, end - blockRows);
+    const height = end - start;
+    const below = cols - end;
+    if (below > 0) {
+      const r = new Float64Array(height * below);
+      for (let i = 0; i < height; i++) for (let j = 0; j < below; j++) r[i * below + j] = factors[(end + j) * rows + start + i];
+      const known = packColumns(x.subarray(end * rhsCount), below, rhsCount);
+      multiplyPackedInto(r, height, known, x.subarray(start * rhsCount, end * rhsCount), 0, height, true);
     }
-    const diagonal = factors[k * rows + k];
-    if (diagonal === 0) throw new RangeError("R is singular");
-    const inverse = 1 / diagonal;
-    for (let c = 0; c < rhsCount; c++) x[rk + c] *= inverse;
+    for (let k = end - 1; k >= start; k--) {
+      const rk = k * rhsCount;
+      for (let j = k + 1; j < end; j++) {
+        const rkj = factors[j * rows + k];
+        if (rkj === 0) continue;
+        const rj = j * rhsCount;
+        for (let c = 0; c < rhsCount; c++) x[rk + c] -= rkj * x[rj + c];
+      }
+      const inverse = 1 / factors[k * rows + k];
+      for (let c = 0; c < rhsCount; c++) x[rk + c] *= inverse;
+    }
   }
   return x;
 }
