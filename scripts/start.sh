@@ -34,6 +34,6 @@ knex_cli seed:run
 build_if_needed
 
 echo "[start] serving on http://127.0.0.1:$port (demo accounts: see README.md)" >&2
-npx --no-install next start -H 127.0.0.1 -p "$port" &
+"$repo_root/node_modules/.bin/next" start -H 127.0.0.1 -p "$port" &
 server_pid=$!
 wait "$server_pid"
