@@ -24,6 +24,6 @@ export {
 } from "./modelFile.ts";
 export { sha256Hex } from "./checksum.ts";
 export {
-  sampleSetSha256, trainSurrogate, type ExactPropagator, type GeneratingSetSpec, type TrainingPhase, type TrainingRequest,
+  regenerateValidationSet, sampleSetSha256, trainSurrogate, type ExactPropagator, type GeneratingSetSpec, type TrainingPhase, type TrainingRequest,
   type TrainingResult,
 } from "./train.ts";

@@ -165,3 +165,18 @@ export async function trainSurrogate(
   }
   return { model, generatingSet, validationSet };
 }
+
+/**
+ * The validation set of a trained model, made again from its provenance (seed, size, amplitude) and propagated
+ * exactly: the same wavefronts, hence the same statistics, on any machine. Used to check pruning later.
+ * @returns null when the model was trained without a validation set
+ */
+export async function regenerateValidationSet(model: SurrogateModel, propagate: ExactPropagator): Promise<SampleSet | null> {
+  const spec = model.provenance.validationSet;
+  if (!spec) return null;
+  const coefficientsNm = randomAmplitudeDesign(model.nollIndices.length, spec);
+  const maps = await propagate([...model.nollIndices], coefficientsNm, () => {});
+  const set: SampleSet = { coefficientsNm, x: maps.x, y: maps.y, count: spec.size, pointsPerAxis: model.pointsPerAxis };
+  checkSampleSet(set, model.nollIndices.length, model.pointsPerAxis);
+  return set;
+}
