@@ -25,8 +25,11 @@ export interface Provenance {
 
 /** What a fit reported. */
 export interface FitReport {
+  /** Generating samples S. */
   samples: number;
+  /** 2-norm condition number of the design matrix (features in nm^degree) with each column scaled to unit length. */
   conditionNumber: number;
+  /** RMS of the least-squares residual over samples, nodes and both axes, pm/nrad (0 for a square design). */
   trainingResidualRmsPmPerNrad: number;
 }
 
