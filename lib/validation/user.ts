@@ -1,4 +1,5 @@
 import { z } from "zod";
+import { ROLES } from "../auth/roles";
 
 export const userNameSchema = z
   .string()
@@ -8,3 +9,12 @@ export const userNameSchema = z
 
 export const updateProfileSchema = z.object({ name: userNameSchema });
 export type UpdateProfileInput = z.infer<typeof updateProfileSchema>;
+
+/** What GET /api/v1/me answers. */
+export const meSchema = z.object({
+  id: z.number().int().positive(),
+  email: z.string(),
+  name: z.string(),
+  roles: z.array(z.enum(ROLES)),
+});
+export type Me = z.infer<typeof meSchema>;
