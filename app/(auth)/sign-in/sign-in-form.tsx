@@ -1,38 +1,37 @@
 "use client";
 
+import { zodResolver } from "@hookform/resolvers/zod";
 import { signIn } from "next-auth/react";
 import { useRouter } from "next/navigation";
-import { useState, type FormEvent } from "react";
+import { useState } from "react";
+import { useForm } from "react-hook-form";
 import { signInErrorMessage } from "@/lib/auth/messages";
-import { signInSchema } from "@/lib/validation/auth";
+import { signInSchema, type SignInInput } from "@/lib/validation/auth";
+
+const inputClass = "rounded border border-line bg-surface px-2 py-1.5 text-base aria-[invalid=true]:border-fault";
 
 export function SignInForm({ callbackPath, initialError }: { callbackPath: string; initialError: string | null }) {
   const router = useRouter();
   const [error, setError] = useState<string | null>(initialError);
-  const [busy, setBusy] = useState(false);
+  const {
+    register,
+    handleSubmit,
+    formState: { errors, isSubmitting },
+  } = useForm<SignInInput>({ resolver: zodResolver(signInSchema) });
 
-  async function onSubmit(event: FormEvent<HTMLFormElement>) {
-    event.preventDefault();
-    const form = new FormData(event.currentTarget);
-    const parsed = signInSchema.safeParse({ email: form.get("email"), password: form.get("password") });
-    if (!parsed.success) {
-      setError(parsed.error.issues[0]?.message ?? "Enter your e-mail address and password.");
-      return;
-    }
-    setBusy(true);
+  const onSubmit = handleSubmit(async (values) => {
     setError(null);
-    const result = await signIn("credentials", { ...parsed.data, redirect: false, callbackUrl: callbackPath });
+    const result = await signIn("credentials", { ...values, redirect: false, callbackUrl: callbackPath });
     if (!result || result.error) {
-      setBusy(false);
       setError(signInErrorMessage(result?.error ?? "CredentialsSignin"));
       return;
     }
     router.replace(callbackPath);
     router.refresh();
-  }
+  });
 
   return (
-    <form onSubmit={onSubmit} className="flex flex-col gap-3" noValidate aria-describedby={error ? "sign-in-error" : undefined}>
+    <form onSubmit={onSubmit} className="flex flex-col gap-3" noValidate>
       {error && (
         <p id="sign-in-error" role="alert" className="rounded border border-fault bg-fault-soft px-3 py-2 text-sm text-fault">
           {error}
@@ -44,13 +43,19 @@ export function SignInForm({ callbackPath, initialError }: { callbackPath: strin
         </label>
         <input
           id="email"
-          name="email"
           type="email"
           autoComplete="username"
-          required
           autoFocus
-          className="rounded border border-line bg-surface px-2 py-1.5 text-base"
+          aria-invalid={errors.email ? true : undefined}
+          aria-describedby={errors.email ? "email-error" : undefined}
+          className={inputClass}
+          {...register("email")}
         />
+        {errors.email && (
+          <p id="email-error" className="text-sm text-fault">
+            {errors.email.message}
+          </p>
+        )}
       </div>
       <div className="flex flex-col gap-1">
         <label htmlFor="password" className="text-sm font-medium">
@@ -58,19 +63,25 @@ export function SignInForm({ callbackPath, initialError }: { callbackPath: strin
         </label>
         <input
           id="password"
-          name="password"
           type="password"
           autoComplete="current-password"
-          required
-          className="rounded border border-line bg-surface px-2 py-1.5 text-base"
+          aria-invalid={errors.password ? true : undefined}
+          aria-describedby={errors.password ? "password-error" : undefined}
+          className={inputClass}
+          {...register("password")}
         />
+        {errors.password && (
+          <p id="password-error" className="text-sm text-fault">
+            {errors.password.message}
+          </p>
+        )}
       </div>
       <button
         type="submit"
-        disabled={busy}
+        disabled={isSubmitting}
         className="mt-1 rounded bg-accent px-3 py-2 text-sm font-medium text-accent-ink disabled:opacity-60"
       >
-        {busy ? "Signing in…" : "Sign in"}
+        {isSubmitting ? "Signing in…" : "Sign in"}
       </button>
     </form>
   );
