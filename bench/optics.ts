@@ -1,16 +1,14 @@
 // npm run bench:optics: exact TTL maps for the demo setup (128 x 128 pupil, 25 x 25 nodes, Noll 4-36),
 // on one thread and on all threads, beside the same computation in NumPy.
 import { availableParallelism } from "node:os";
-import { TtlPropagator, type OpticalSetup } from "../lib/optics/index.ts";
+import { VELORA_SETUP, VELORA_ZERNIKE } from "../lib/demo/velora.ts";
+import { TtlPropagator } from "../lib/optics/index.ts";
 import { propagateMany } from "../lib/parallel/index.ts";
 import { randomDesign } from "../lib/surrogate/designs.ts";
 import { runNumpyScript } from "./numpy.ts";
 
-const SETUP: OpticalSetup = {
-  wavelengthNm: 1064, apertureDiameterM: 0.26, beamRadiusM: 0.115, distanceM: 2.2e9,
-  farField: { halfAngleNrad: 60, pointsPerAxis: 25 }, pupilSamples: 128,
-};
-const TERMS = Array.from({ length: 33 }, (_, i) => i + 4);
+const SETUP = VELORA_SETUP;
+const TERMS = VELORA_ZERNIKE.indices;
 const J = TERMS.length;
 
 function bestOf<T>(repeats: number, work: () => T): number {

@@ -6,18 +6,15 @@ import { mkdtempSync, rmSync, writeFileSync } from "node:fs";
 import { tmpdir } from "node:os";
 import { join } from "node:path";
 import { fileURLToPath } from "node:url";
-import type { OpticalSetup } from "../lib/optics/index.ts";
+import { VELORA_SETUP, VELORA_ZERNIKE } from "../lib/demo/velora.ts";
 import { propagateMany } from "../lib/parallel/index.ts";
 import {
   encodeModel, pruneModel, trainSurrogate, type SurrogateModel, type TrainingPhase,
 } from "../lib/surrogate/index.ts";
 import { runNumpyScript } from "./numpy.ts";
 
-const SETUP: OpticalSetup = {
-  wavelengthNm: 1064, apertureDiameterM: 0.26, beamRadiusM: 0.115, distanceM: 2.2e9,
-  farField: { halfAngleNrad: 60, pointsPerAxis: 25 }, pupilSamples: 128,
-};
-const NOLL = Array.from({ length: 33 }, (_, i) => i + 4);
+const SETUP = VELORA_SETUP;
+const NOLL = VELORA_ZERNIKE.indices;
 const J = NOLL.length;
 const SPEC = {
   setup: SETUP,

@@ -1,6 +1,7 @@
 import { readdirSync, statSync } from "node:fs";
 import path from "node:path";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { VELORA_SETUP } from "@/lib/demo/velora";
 import { closeDb } from "@/lib/db/knex";
 import { DEMO_PASSWORD } from "@/seeds/01_demo_accounts";
 import { signIn, startAppServer, type AppServer } from "../helpers/app-server";
@@ -35,14 +36,6 @@ function workspacePages(): string[] {
   return routes.sort();
 }
 
-const VELORA_SETUP = {
-  wavelengthNm: 1064,
-  apertureDiameterM: 0.26,
-  beamRadiusM: 0.115,
-  distanceM: 2.2e9,
-  farField: { halfAngleNrad: 60, pointsPerAxis: 25 },
-  pupilSamples: 128,
-};
 
 describe("signed-out visitors", () => {
   const pages = workspacePages();

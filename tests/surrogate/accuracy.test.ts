@@ -1,4 +1,5 @@
 import { beforeAll, describe, expect, it } from "vitest";
+import { VELORA_SETUP, VELORA_ZERNIKE } from "../../lib/demo/velora.ts";
 import { propagateMany } from "../../lib/parallel/index.ts";
 import {
   evaluateBatch, pruneModel, randomDesign, regenerateValidationSet, residualStatistics, splitAxes, termSignificance, trainSurrogate,
@@ -7,15 +8,8 @@ import {
 
 // The default demo spec of DESIGN.md / the issue: Velora setup, Noll 4-36, 1300 random + 200 validation samples
 // up to 35 nm RMS, 128 x 128 pupil, 25 x 25 nodes. Trained once for the whole file (about 10-20 s on 2 cores).
-const setup = {
-  wavelengthNm: 1064,
-  apertureDiameterM: 0.26,
-  beamRadiusM: 0.115,
-  distanceM: 2.2e9,
-  farField: { halfAngleNrad: 60, pointsPerAxis: 25 },
-  pupilSamples: 128,
-};
-const noll = Array.from({ length: 33 }, (_, i) => i + 4);
+const setup = VELORA_SETUP;
+const noll = VELORA_ZERNIKE.indices;
 const J = noll.length;
 const nodes = 25 * 25;
 const zernike = { ordering: "noll" as const, indices: noll };
