@@ -40,7 +40,8 @@ const ROW_CHUNK = 64;
 /**
  * `out[i][j] = sum_k left[i][k] right[k][j]` for rows `rowStart <= i < rowEnd` of the row-major `left`
  * (`rows x inner`), with `right` packed by {@link packColumns}; `out` is row-major `rows x right.cols`.
- * Rows are taken in chunks that stay in cache while every column panel streams past them, and the
+ * Rows are taken in chunks of 64 that stay in cache; each column panel is read once per chunk and reused by
+ * all its row blocks (not re-streamed for every 4 rows), and the
  * innermost kernel keeps a 4 x 4 block of the result in local variables. With `subtract` the product is
  * subtracted from `out` instead of written to it (`out -= left right`).
  *
@@ -59,25 +60,36 @@ export function multiplyPackedInto(
   const { inner, cols, panels, data } = right;
   if (left.length !== rows * inner) throw new RangeError("left length must equal rows * inner");
   if (out.length !== rows * cols) throw new RangeError("out length must equal rows * cols");
-  const leftPack = new Float64Array(ROW_BLOCK * inner);
+  const blocksPerChunk = ROW_CHUNK / ROW_BLOCK;
+  // The chunk's rows, interleaved by blocks of 4: leftPack[b][k * 4 + r].
+  const leftPack = new Float64Array(ROW_CHUNK * inner);
   const block = new Float64Array(ROW_BLOCK * PANEL_WIDTH);
   for (let chunk0 = rowStart; chunk0 < rowEnd; chunk0 += ROW_CHUNK) {
     const chunkEnd = Math.min(rowEnd, chunk0 + ROW_CHUNK);
-    for (let r0 = chunk0; r0 < chunkEnd; r0 += ROW_BLOCK) {
+    const blockCount = Math.ceil((chunkEnd - chunk0) / ROW_BLOCK);
+    leftPack.fill(0);
+    for (let b = 0; b < blockCount; b++) {
+      const r0 = chunk0 + b * ROW_BLOCK;
       const height = Math.min(ROW_BLOCK, chunkEnd - r0);
-      // Interleave the block's rows: leftPack[k * 4 + r].
-      leftPack.fill(0);
+      const base = b * ROW_BLOCK * inner;
       for (let r = 0; r < height; r++) {
         const src = (r0 + r) * inner;
-        for (let k = 0; k < inner; k++) leftPack[k * ROW_BLOCK + r] = left[src + k];
+        for (let k = 0; k < inner; k++) leftPack[base + k * ROW_BLOCK + r] = left[src + k];
       }
-      for (let p = 0; p < panels; p++) {
+    }
+    // Each column panel is read from memory once per chunk and reused, from cache, by all its row blocks.
+    for (let p = 0; p < panels; p++) {
+      const c0 = p * PANEL_WIDTH;
+      const width = Math.min(PANEL_WIDTH, cols - c0);
+      for (let b = 0; b < blockCount && b < blocksPerChunk; b++) {
+        const r0 = chunk0 + b * ROW_BLOCK;
+        const height = Math.min(ROW_BLOCK, chunkEnd - r0);
         let c00 = 0, c01 = 0, c02 = 0, c03 = 0;
         let c10 = 0, c11 = 0, c12 = 0, c13 = 0;
         let c20 = 0, c21 = 0, c22 = 0, c23 = 0;
         let c30 = 0, c31 = 0, c32 = 0, c33 = 0;
         let bi = p * inner * PANEL_WIDTH;
-        let ai = 0;
+        let ai = b * ROW_BLOCK * inner;
         for (let k = 0; k < inner; k++, ai += 4, bi += 4) {
           const a0 = leftPack[ai], a1 = leftPack[ai + 1], a2 = leftPack[ai + 2], a3 = leftPack[ai + 3];
           const b0 = data[bi], b1 = data[bi + 1], b2 = data[bi + 2], b3 = data[bi + 3];
@@ -86,8 +98,6 @@ export function multiplyPackedInto(
           c20 += a2 * b0; c21 += a2 * b1; c22 += a2 * b2; c23 += a2 * b3;
           c30 += a3 * b0; c31 += a3 * b1; c32 += a3 * b2; c33 += a3 * b3;
         }
-        const c0 = p * PANEL_WIDTH;
-        const width = Math.min(PANEL_WIDTH, cols - c0);
         const sign = subtract ? -1 : 1;
         block[0] = c00; block[1] = c01; block[2] = c02; block[3] = c03;
         block[4] = c10; block[5] = c11; block[6] = c12; block[7] = c13;
