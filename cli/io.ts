@@ -23,6 +23,14 @@ export function parseOptions<const R extends string, const O extends string = ne
   return values as Record<R, string> & Partial<Record<O, string>>;
 }
 
+/** The optional `--threads N` value: undefined when absent, else a positive integer. */
+export function parseThreads(value: string | undefined): number | undefined {
+  if (value === undefined) return undefined;
+  const threads = Number(value);
+  if (!Number.isInteger(threads) || threads < 1) throw new CliError("--threads must be a positive integer");
+  return threads;
+}
+
 /** Read and parse a JSON file, with one-line messages for a missing file or bad JSON. */
 export async function readJsonFile(path: string, what: string): Promise<unknown> {
   let text: string;

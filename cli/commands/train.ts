@@ -10,7 +10,7 @@ import {
   encodeModel, fullTermCount, SURROGATE_NOTICE, trainSurrogate, type SampleSet, type TrainingPhase,
 } from "../../lib/surrogate/index.ts";
 import { CliError } from "../errors.ts";
-import { parseOptions, readJsonFile } from "../io.ts";
+import { parseOptions, parseThreads, readJsonFile } from "../io.ts";
 
 const positive = z.number().finite().positive();
 const seed = z.number().int().refine(Number.isSafeInteger, "must be a safe integer");
@@ -136,8 +136,7 @@ const fmt = (value: number, digits = 3) => Number(value.toPrecision(digits)).toS
  */
 export async function run(argv: string[]): Promise<number> {
   const options = parseOptions(argv, ["spec", "out"], ["threads"]);
-  const threads = options.threads === undefined ? undefined : Number(options.threads);
-  if (threads !== undefined && (!Number.isInteger(threads) || threads < 1)) throw new CliError("--threads must be a positive integer");
+  const threads = parseThreads(options.threads);
   const spec = parseSpec(await readJsonFile(options.spec, "spec"), options.spec);
   let setup: OpticalSetup;
   let nollCount: number;

@@ -1,7 +1,7 @@
 import { thetaGridNrad, toTtlMap, unionNollIndices, validateSetup, wavefrontToVector, type Wavefront } from "../../lib/optics/index.ts";
 import { propagateMany } from "../../lib/parallel/index.ts";
 import { CliError } from "../errors.ts";
-import { parseOptions, readJsonFile, writeJson } from "../io.ts";
+import { parseOptions, parseThreads, readJsonFile, writeJson } from "../io.ts";
 
 /** Below this many wavefronts, starting worker threads costs more than it saves. */
 const PARALLEL_FROM = 64;
@@ -21,10 +21,7 @@ export async function run(argv: string[]): Promise<number> {
   const coefficients = new Float64Array(wavefronts.length * terms);
   wavefronts.forEach((wavefront, s) => coefficients.set(wavefrontToVector(wavefront, indices), s * terms));
 
-  const threads = options.threads === undefined ? undefined : Number(options.threads);
-  if (threads !== undefined && (!Number.isInteger(threads) || threads < 1)) {
-    throw new CliError("--threads must be a positive integer");
-  }
+  const threads = parseThreads(options.threads);
   const maps = await propagateMany(setup, indices, coefficients, {
     threads: threads ?? (wavefronts.length >= PARALLEL_FROM ? undefined : 1),
   });
