@@ -67,6 +67,7 @@ describe("stillpoint ttl", () => {
     [["--setup", "setup.json", "--wfe", "bad-wfe.json"], /^stillpoint ttl: coefficient of noll term 4 must be a finite number\n$/],
     [["--setup", "setup.json", "--wfe", "broken.json"], /^stillpoint ttl: wavefront file .*broken\.json is not valid JSON: .*\n$/],
     [["--setup", "setup.json"], /^stillpoint ttl: missing --wfe\n$/],
+    [["--setup", "setup.json", "--wfe", "one.json", "--threads", "0"], /^stillpoint ttl: --threads must be a positive integer\n$/],
   ])("exits non-zero with one clear line for %j", async (args, message) => {
     const resolved = args.map((a) => (a.endsWith(".json") ? file(a) : a));
     const { code, stdout, stderr } = await stillpoint("ttl", ...resolved);
