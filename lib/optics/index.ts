@@ -9,3 +9,7 @@ export { phasorsInto } from "./phasor.ts";
 export { TtlPropagator } from "./propagator.ts";
 export { nollCoefficients, unionNollIndices, wavefrontToVector } from "./wavefront.ts";
 export { peakAbsTtl, toTtlMap } from "./ttlMap.ts";
+export {
+  beamToApertureRatio, derivedQuantities, diffractionAngleNrad, fresnelNumber, onAxisGain, onAxisGainOptimum,
+  type DerivedInput, type DerivedQuantities,
+} from "./derived.ts";
