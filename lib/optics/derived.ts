@@ -1,3 +1,4 @@
+import { requirePositiveFinite } from "./checks.ts";
 import type { OpticalSetup } from "./types.ts";
 
 /** The fields of a setup the derived quantities depend on. */
@@ -19,12 +20,6 @@ export interface DerivedQuantities {
   optimumGain: number;
 }
 
-function positiveFinite(value: number, name: string): number {
-  if (typeof value !== "number") throw new TypeError(`${name} must be a number`);
-  if (!Number.isFinite(value) || value <= 0) throw new RangeError(`${name} must be a positive finite number`);
-  return value;
-}
-
 /**
  * Diffraction angle `lambda / D`, in nrad.
  * @param wavelengthNm wavelength, nm
@@ -33,7 +28,7 @@ function positiveFinite(value: number, name: string): number {
  */
 export function diffractionAngleNrad(wavelengthNm: number, apertureDiameterM: number): number {
   // lambda [m] / D [m] * 1e9 nrad/rad = wavelengthNm * 1e-9 / D * 1e9.
-  return positiveFinite(wavelengthNm, "wavelengthNm") / positiveFinite(apertureDiameterM, "apertureDiameterM");
+  return requirePositiveFinite(wavelengthNm, "wavelengthNm") / requirePositiveFinite(apertureDiameterM, "apertureDiameterM");
 }
 
 /**
@@ -44,7 +39,7 @@ export function diffractionAngleNrad(wavelengthNm: number, apertureDiameterM: nu
  * @throws RangeError unless both are positive and finite
  */
 export function beamToApertureRatio(beamRadiusM: number, apertureDiameterM: number): number {
-  return positiveFinite(beamRadiusM, "beamRadiusM") / (positiveFinite(apertureDiameterM, "apertureDiameterM") / 2);
+  return requirePositiveFinite(beamRadiusM, "beamRadiusM") / (requirePositiveFinite(apertureDiameterM, "apertureDiameterM") / 2);
 }
 
 /**
@@ -56,8 +51,8 @@ export function beamToApertureRatio(beamRadiusM: number, apertureDiameterM: numb
  * @throws RangeError unless all are positive and finite
  */
 export function fresnelNumber(wavelengthNm: number, apertureDiameterM: number, distanceM: number): number {
-  const r = positiveFinite(apertureDiameterM, "apertureDiameterM") / 2;
-  return (r * r) / (positiveFinite(wavelengthNm, "wavelengthNm") * 1e-9 * positiveFinite(distanceM, "distanceM"));
+  const r = requirePositiveFinite(apertureDiameterM, "apertureDiameterM") / 2;
+  return (r * r) / (requirePositiveFinite(wavelengthNm, "wavelengthNm") * 1e-9 * requirePositiveFinite(distanceM, "distanceM"));
 }
 
 /**
@@ -69,7 +64,7 @@ export function fresnelNumber(wavelengthNm: number, apertureDiameterM: number, d
  * @throws RangeError unless alpha is positive and finite
  */
 export function onAxisGain(alpha: number): number {
-  positiveFinite(alpha, "alpha");
+  requirePositiveFinite(alpha, "alpha");
   const u = alpha * alpha;
   // -expm1(-u) = 1 - exp(-u) without cancellation for small alpha.
   const f = -Math.expm1(-u);

@@ -3,7 +3,11 @@ export {
   MAX_ANSI_INDEX, MAX_NOLL_INDEX, MAX_RADIAL_ORDER, ZernikeTerm, ansiToNoll, nollToAnsi, nollToOrders, ordersToNoll,
   radialCoefficients, toNollIndex, toNollIndices, zernike, type ZernikeOrders,
 } from "./zernike.ts";
-export { MAX_PUPIL_SAMPLES, MIN_PUPIL_SAMPLES, thetaGridNrad, validateSetup } from "./setup.ts";
+export {
+  MAX_POINTS_PER_AXIS, MAX_PUPIL_SAMPLES, MIN_POINTS_PER_AXIS, MIN_PUPIL_SAMPLES, POSITIVE_SETUP_FIELDS, SETUP_MESSAGES,
+  thetaGridNrad, validateSetup, type PositiveSetupField,
+} from "./setup.ts";
+export { CHECK_MESSAGES, requirePositiveFinite } from "./checks.ts";
 export { apertureTransmission, cellFractionInsideCircle, pupilCoordinates } from "./pupil.ts";
 export { phasorsInto } from "./phasor.ts";
 export { TtlPropagator } from "./propagator.ts";

@@ -2,6 +2,7 @@ import { readdirSync, statSync } from "node:fs";
 import path from "node:path";
 import { describe, expect, it } from "vitest";
 import { GET } from "@/app/api/v1/openapi.json/route";
+import { MAX_POINTS_PER_AXIS, MAX_PUPIL_SAMPLES, MIN_POINTS_PER_AXIS, MIN_PUPIL_SAMPLES } from "@/lib/optics/setup";
 import { REPO_ROOT } from "../helpers/test-database";
 
 /** URL paths of every route handler under app/api/v1, found on disk. */
@@ -34,6 +35,12 @@ describe("GET /api/v1/openapi.json", () => {
       expect.arrayContaining(["wavelengthNm", "apertureDiameterM", "beamRadiusM", "distanceM", "farField", "pupilSamples"]),
     );
     expect(setup.additionalProperties).toBe(false);
-    expect(setup.properties.pupilSamples).toMatchObject({ type: "integer", minimum: 16, maximum: 2048 });
+    // The limits are the numerical core's own (lib/optics/setup.ts), not repeated here.
+    expect(setup.properties.pupilSamples).toMatchObject({
+      type: "integer", minimum: MIN_PUPIL_SAMPLES, maximum: MAX_PUPIL_SAMPLES,
+    });
+    expect(setup.properties.farField.properties.pointsPerAxis).toMatchObject({
+      type: "integer", minimum: MIN_POINTS_PER_AXIS, maximum: MAX_POINTS_PER_AXIS,
+    });
   });
 });
