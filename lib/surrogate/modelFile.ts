@@ -44,6 +44,7 @@ const headerSchema = z.object({
     seed: z.number().int().nullable(),
     uploadedSha256: z.string().nullable(),
     validationSet: z.object({ size: z.number().int(), maxRmsNm: finite, seed: z.number().int() }).nullable(),
+    validationUploadedSha256: z.string().nullable().optional(),
     softwareVersion: z.string(),
     createdAt: z.string(),
   }),

@@ -170,7 +170,7 @@ describe("zero wavefront error", () => {
 
     const { model } = await trainSurrogate(
       {
-        setup, zernike, order: 2, generatingSet: { design: "axes-and-pairs", maxRmsNm: 35 },
+        setup, zernike, order: 2, generatingSet: { design: "axes-and-pairs", stepNm: 35 / Math.SQRT2 },
         validationSet: null, softwareVersion: "test", createdAt: "2026-12-01T00:00:00.000Z",
       },
       exact,

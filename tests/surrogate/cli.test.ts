@@ -69,7 +69,7 @@ describe("stillpoint train", () => {
     expect(few.stderr).toMatch(/stillpoint train: generating set has 10 samples but the model has 21 terms; at least 21 are needed\n$/);
     write("setup-bad.json", { ...spec, setup: { ...setup, pupilSamples: 7 } });
     const badSetup = stillpoint("train", "--spec", "setup-bad.json", "--out", "x.stpm");
-    expect(badSetup.stderr).toBe("stillpoint train: invalid spec setup-bad.json: pupilSamples must be an integer between 32 and 1024\n");
+    expect(badSetup.stderr).toBe("stillpoint train: invalid spec setup-bad.json: setup.pupilSamples: pupilSamples must be an integer between 32 and 1024\n");
     expect(existsSync(join(dir, "bad.stpm")) || existsSync(join(dir, "few.stpm")) || existsSync(join(dir, "x.stpm"))).toBe(false);
     expect(readdirSync(dir).filter((f) => f.endsWith(".part"))).toEqual([]);
     const missing = stillpoint("train", "--spec", "nowhere.json", "--out", "x.stpm");
