@@ -65,6 +65,9 @@ async function readUploadedSet(path: string, setup: OpticalSetup, zernike: Zerni
       }
       rows.forEach((row: unknown[], iy: number) =>
         row.forEach((value, ix) => {
+          if (value === null) {
+            throw new CliError(`${where}: map ${axis}[${iy}][${ix}] is null (TTL undefined at a far-field null); a surrogate cannot be trained on it`);
+          }
           if (typeof value !== "number" || !Number.isFinite(value)) throw new CliError(`${where}: map ${axis}[${iy}][${ix}] must be a finite number`);
           target[s * M * M + iy * M + ix] = value;
         }),
@@ -158,10 +161,8 @@ export async function run(argv: string[]): Promise<number> {
         softwareVersion: await softwareVersion(),
         createdAt: new Date().toISOString(),
       },
-      async (noll, coefficientsNm, onProgress) => {
-        const maps = await propagateMany(setup, noll, coefficientsNm, { threads, onProgress });
-        return { x: maps.x, y: maps.y };
-      },
+      (noll, coefficientsNm, onProgress) =>
+        propagateMany(setup, noll, coefficientsNm, { threads, onProgress }),
       progressReporter(),
     );
   } catch (error) {

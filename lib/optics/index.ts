@@ -10,9 +10,11 @@ export {
 export { CHECK_MESSAGES, requirePositiveFinite } from "./checks.ts";
 export { apertureTransmission, cellFractionInsideCircle, pupilCoordinates } from "./pupil.ts";
 export { phasorsInto } from "./phasor.ts";
-export { TtlPropagator } from "./propagator.ts";
+export { NULL_FIELD_RELATIVE, TtlPropagator, ttlFromFieldInto, type FarFieldMoments } from "./propagator.ts";
 export { nollCoefficients, unionNollIndices, wavefrontToVector } from "./wavefront.ts";
-export { peakAbsTtl, toTtlMap } from "./ttlMap.ts";
+export {
+  peakAbsTtl, requireDefinedTtl, toTtlMap, undefinedNodePosition, undefinedNodesWarning,
+} from "./ttlMap.ts";
 export {
   beamToApertureRatio, derivedQuantities, diffractionAngleNrad, fresnelNumber, onAxisGain, onAxisGainOptimum,
   type DerivedInput, type DerivedQuantities,

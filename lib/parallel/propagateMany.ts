@@ -60,12 +60,15 @@ export async function propagateMany(
     });
   }
   let done = 0;
+  const undefinedByTask: number[][] = tasks.map(() => []);
   const collect = (index: number, result: TtlTaskResult) => {
     x.set(result.x, index * chunk * nodes);
     y.set(result.y, index * chunk * nodes);
+    for (const node of result.undefinedNodes) undefinedByTask[index].push(index * chunk * nodes + node);
     done += tasks[index].count;
     options.onProgress?.(done, count);
   };
+  const result = (): FlatTtlMaps => ({ pointsPerAxis: m, count, x, y, undefinedNodes: Int32Array.from(undefinedByTask.flat()) });
 
   if (threads === 1) {
     for (let i = 0; i < tasks.length; i++) {
@@ -73,21 +76,21 @@ export async function propagateMany(
       collect(i, runTtlTask(tasks[i]));
       await new Promise((resolve) => setImmediate(resolve)); // let progress and cancellation through
     }
-    return { pointsPerAxis: m, count, x, y };
+    return result();
   }
 
   const pool = new Piscina({ filename: WORKER_FILE, minThreads: threads, maxThreads: threads, idleTimeout: 1000 });
   try {
     await Promise.all(
       tasks.map((task, i) =>
-        pool.run(task, { signal: options.signal ?? null }).then((both: Float64Array) => {
-          const half = both.length / 2;
-          collect(i, { x: both.subarray(0, half), y: both.subarray(half) });
+        pool.run(task, { signal: options.signal ?? null }).then((all: Float64Array) => {
+          const size = task.count * nodes;
+          collect(i, { x: all.subarray(0, size), y: all.subarray(size, 2 * size), undefinedNodes: Array.from(all.subarray(2 * size)) });
         }),
       ),
     );
   } finally {
     await pool.destroy();
   }
-  return { pointsPerAxis: m, count, x, y };
+  return result();
 }

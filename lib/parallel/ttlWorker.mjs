@@ -6,11 +6,15 @@ import { register } from "tsx/esm/api";
 register();
 const { runTtlTask } = await import("./ttlTask.ts");
 
-/** Returns x then y maps in one buffer, moved (not copied) back to the caller. */
+/**
+ * Returns the x maps, the y maps and then the task's undefined node indices (exact small integers)
+ * in one buffer, moved (not copied) back to the caller.
+ */
 export default function ttlWorker(task) {
-  const { x, y } = runTtlTask(task);
-  const both = new Float64Array(x.length + y.length);
-  both.set(x);
-  both.set(y, x.length);
-  return move(both);
+  const { x, y, undefinedNodes } = runTtlTask(task);
+  const all = new Float64Array(x.length + y.length + undefinedNodes.length);
+  all.set(x);
+  all.set(y, x.length);
+  all.set(undefinedNodes, x.length + y.length);
+  return move(all);
 }

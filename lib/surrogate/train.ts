@@ -1,5 +1,6 @@
 import { toNollIndices } from "../optics/zernike.ts";
 import { validateSetup } from "../optics/setup.ts";
+import { requireDefinedTtl } from "../optics/ttlMap.ts";
 import type { OpticalSetup, ZernikeSet } from "../optics/types.ts";
 import { sha256Hex } from "./checksum.ts";
 import {
@@ -44,12 +45,15 @@ export interface TrainingRequest {
   createdAt: string;
 }
 
-/** Exact maps for `S x J` coefficients in `nollIndices` order: flat `x`, `y` of `S x M^2` values, pm/nrad. */
+/**
+ * Exact maps for `S x J` coefficients in `nollIndices` order: flat `x`, `y` of `S x M^2` values, pm/nrad, and the
+ * nodes where the TTL is undefined (FlatTtlMaps; training refuses them).
+ */
 export type ExactPropagator = (
   nollIndices: number[],
   coefficientsNm: Float64Array,
   onProgress: (done: number, total: number) => void,
-) => Promise<{ x: Float64Array; y: Float64Array }>;
+) => Promise<{ x: Float64Array; y: Float64Array; undefinedNodes: ArrayLike<number> }>;
 
 export type TrainingPhase = "generating set" | "fit" | "validation set" | "statistics";
 
@@ -147,7 +151,10 @@ export async function trainSurrogate(
     if (count < compiled.count) {
       throw new RangeError(`generating set has ${count} samples but the model has ${compiled.count} terms; at least ${compiled.count} are needed`);
     }
-    const maps = await propagate(nollIndices, coefficientsNm, (done, total) => onProgress("generating set", done, total));
+    const maps = requireDefinedTtl(
+      { pointsPerAxis: M, ...(await propagate(nollIndices, coefficientsNm, (done, total) => onProgress("generating set", done, total))) },
+      "generating set",
+    );
     generatingSet = { coefficientsNm, x: maps.x, y: maps.y, count, pointsPerAxis: M };
     checkSampleSet(generatingSet, J, M);
   }
@@ -184,7 +191,10 @@ export async function trainSurrogate(
       provenance.validationUploadedSha256 = sampleSetSha256(validationSet);
     } else {
       const coefficientsNm = validationCoefficients(request.validationSet, J);
-      const maps = await propagate(nollIndices, coefficientsNm, (done, total) => onProgress("validation set", done, total));
+      const maps = requireDefinedTtl(
+        { pointsPerAxis: M, ...(await propagate(nollIndices, coefficientsNm, (done, total) => onProgress("validation set", done, total))) },
+        "validation set",
+      );
       validationSet = { coefficientsNm, x: maps.x, y: maps.y, count: request.validationSet.size, pointsPerAxis: M };
     }
     const coefficientsNm = validationSet.coefficientsNm;
@@ -205,7 +215,10 @@ export async function regenerateValidationSet(model: SurrogateModel, propagate: 
   const spec = model.provenance.validationSet;
   if (!spec) return null;
   const coefficientsNm = randomAmplitudeDesign(model.nollIndices.length, spec);
-  const maps = await propagate([...model.nollIndices], coefficientsNm, () => {});
+  const maps = requireDefinedTtl(
+    { pointsPerAxis: model.pointsPerAxis, ...(await propagate([...model.nollIndices], coefficientsNm, () => {})) },
+    "validation set",
+  );
   const set: SampleSet = { coefficientsNm, x: maps.x, y: maps.y, count: spec.size, pointsPerAxis: model.pointsPerAxis };
   checkSampleSet(set, model.nollIndices.length, model.pointsPerAxis);
   return set;

@@ -13,10 +13,8 @@ const noll = VELORA_ZERNIKE.indices;
 const J = noll.length;
 const nodes = 25 * 25;
 const zernike = { ordering: "noll" as const, indices: noll };
-const exact: ExactPropagator = async (indices, coefficientsNm, onProgress) => {
-  const maps = await propagateMany(setup, indices, coefficientsNm, { onProgress });
-  return { x: maps.x, y: maps.y };
-};
+const exact: ExactPropagator = (indices, coefficientsNm, onProgress) =>
+  propagateMany(setup, indices, coefficientsNm, { onProgress });
 
 /** max |predicted - exact| over a set, divided by the largest |exact TTL| in the set (PHYSICS.md section 5). */
 function errorRelativeToPeak(predicted: { x: Float64Array; y: Float64Array }, truth: { x: Float64Array; y: Float64Array }) {
