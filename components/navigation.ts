@@ -1,4 +1,4 @@
-import { hasAnyRole, type Role } from "@/lib/auth/roles";
+import { hasAnyRole, type Role } from "@/lib/access/roles";
 
 export interface NavItem {
   href: string;

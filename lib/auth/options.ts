@@ -5,7 +5,7 @@ import { recordAuditEvent } from "../db/audit";
 import { findCredentialsByEmail, getUser, normaliseEmail } from "../db/users";
 import { signInSchema } from "../validation/auth";
 import { verifyPassword } from "./password";
-import { isRole } from "./roles";
+import { isRole } from "../access/roles";
 
 const SESSION_HOURS = 12;
 
