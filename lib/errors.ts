@@ -39,3 +39,26 @@ export class OutsideValidityRangeError extends DomainError {
   readonly status = 422;
   readonly title = "Outside the validity range";
 }
+
+/** A request that is well formed but cannot be processed as sent (a damaged file, a mismatched grid). */
+export class UnprocessableError extends DomainError {
+  readonly status = 422;
+  readonly title = "Unprocessable request";
+}
+
+export class PayloadTooLargeError extends DomainError {
+  readonly status = 413;
+  readonly title = "Too large";
+}
+
+/** A service the request depends on (database, queue) is down; the client may retry after `retryAfterSeconds`. */
+export class ServiceUnavailableError extends DomainError {
+  readonly status = 503;
+  readonly title = "Service unavailable";
+  constructor(
+    message: string,
+    readonly retryAfterSeconds = 5,
+  ) {
+    super(message);
+  }
+}
