@@ -1,7 +1,7 @@
 export type { FarFieldGrid, FlatTtlMaps, OpticalSetup, TtlMap, Wavefront, ZernikeOrdering, ZernikeSet } from "./types.ts";
 export {
   MAX_ANSI_INDEX, MAX_NOLL_INDEX, MAX_RADIAL_ORDER, ZernikeTerm, ansiToNoll, nollToAnsi, nollToOrders, ordersToNoll,
-  radialCoefficients, toNollIndex, toNollIndices, zernike, type ZernikeOrders,
+  radialCoefficients, requireNollIndices, toNollIndex, toNollIndices, zernike, type ZernikeOrders,
 } from "./zernike.ts";
 export {
   MAX_POINTS_PER_AXIS, MAX_PUPIL_SAMPLES, MIN_POINTS_PER_AXIS, MIN_PUPIL_SAMPLES, POSITIVE_SETUP_FIELDS, SETUP_MESSAGES,

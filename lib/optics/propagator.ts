@@ -1,3 +1,4 @@
+import { requireFiniteCoefficients } from "./checks.ts";
 import { foldedKernels, foldedTransform, type FoldedKernels } from "./matrixFourier.ts";
 import { phasorsInto } from "./phasor.ts";
 import { apertureTransmission, pupilCoordinates } from "./pupil.ts";
@@ -225,15 +226,7 @@ export class TtlPropagator {
   }
 
   private checkCoefficients(coefficientsNm: ArrayLike<number>): void {
-    const terms = this.nollIndices.length;
-    if (coefficientsNm.length !== terms) {
-      throw new RangeError(`expected ${terms} coefficients, got ${coefficientsNm.length}`);
-    }
-    for (let t = 0; t < terms; t++) {
-      if (!Number.isFinite(coefficientsNm[t])) {
-        throw new RangeError(`coefficient of Noll term ${this.nollIndices[t]} must be a finite number`);
-      }
-    }
+    requireFiniteCoefficients(coefficientsNm, this.nollIndices);
   }
 
   /** Pupil field in all four quadrants: amplitude times exp(i (Fresnel + k W)). */

@@ -1,6 +1,7 @@
 import { availableParallelism } from "node:os";
 import { fileURLToPath } from "node:url";
 import { Piscina } from "piscina";
+import { requireFiniteCoefficients } from "../optics/checks.ts";
 import { validateSetup } from "../optics/setup.ts";
 import type { FlatTtlMaps, OpticalSetup } from "../optics/types.ts";
 import { runTtlTask, type TtlTask, type TtlTaskResult } from "./ttlTask.ts";
@@ -24,7 +25,8 @@ const WORKER_FILE = fileURLToPath(new URL("./ttlWorker.mjs", import.meta.url));
  * of the single-thread path.
  * @param coefficientsNm S x J coefficients, row-major, in the order of `nollIndices` (nm RMS)
  * @returns flat maps: `x[s * M^2 + iy * M + ix]` (pm/nrad)
- * @throws RangeError / TypeError for an invalid setup, index or coefficient (before any work starts).
+ * @throws RangeError / TypeError for an invalid setup, index or coefficient (before any work starts;
+ *   coefficients as {@link requireFiniteCoefficients}).
  */
 export async function propagateMany(
   setup: OpticalSetup,
@@ -34,15 +36,7 @@ export async function propagateMany(
 ): Promise<FlatTtlMaps> {
   const clean = validateSetup(setup);
   const terms = nollIndices.length;
-  if (terms === 0 || coefficientsNm.length % terms !== 0) {
-    throw new RangeError(`coefficient array length ${coefficientsNm.length} is not a multiple of ${terms} terms`);
-  }
-  for (let i = 0; i < coefficientsNm.length; i++) {
-    if (!Number.isFinite(coefficientsNm[i])) {
-      throw new RangeError(`coefficient ${i % terms} of wavefront ${Math.floor(i / terms)} must be a finite number`);
-    }
-  }
-  const count = coefficientsNm.length / terms;
+  const count = requireFiniteCoefficients(coefficientsNm, nollIndices, true);
   const m = clean.farField.pointsPerAxis;
   const nodes = m * m;
   const threads = Math.max(1, Math.min(options.threads ?? availableParallelism(), count));

@@ -1,3 +1,4 @@
+import { requireFiniteCoefficients } from "../optics/checks.ts";
 import { multiplyPackedInto, packColumns, type PackedColumns } from "../linalg/index.ts";
 import { interpolateMap } from "./interpolate.ts";
 import type { SurrogateModel } from "./model.ts";
@@ -40,23 +41,13 @@ export function compiledTermsOf(model: SurrogateModel): CompiledTerms {
 }
 
 /**
- * Check a coefficient vector (model Noll order, nm RMS) or a row-major batch of them.
- * @throws {RangeError} "wavefront must have J coefficients" / "coefficient of Zj must be a finite number (wavefront s)"
+ * Check a coefficient vector (model Noll order, nm RMS) or a row-major batch of them: the core's one
+ * finite-coefficient check, {@link requireFiniteCoefficients}.
+ * @returns the number of wavefronts
+ * @throws {RangeError} as {@link requireFiniteCoefficients}
  */
 export function checkCoefficients(model: SurrogateModel, coefficientsNm: ArrayLike<number>, batch = false): number {
-  const termCountJ = model.nollIndices.length;
-  if (batch ? coefficientsNm.length % termCountJ !== 0 : coefficientsNm.length !== termCountJ) {
-    throw new RangeError(`wavefront must have ${termCountJ} coefficients (one per term of the model's Zernike set)`);
-  }
-  for (let i = 0; i < coefficientsNm.length; i++) {
-    if (!Number.isFinite(coefficientsNm[i])) {
-      const k = i % termCountJ;
-      throw new RangeError(
-        `coefficient of Z${model.nollIndices[k]} must be a finite number` + (batch ? ` (wavefront ${(i - k) / termCountJ})` : ""),
-      );
-    }
-  }
-  return coefficientsNm.length / termCountJ;
+  return requireFiniteCoefficients(coefficientsNm, model.nollIndices, batch);
 }
 
 /** Terms per block of the interleaved layout used by {@link evaluateInto}. */

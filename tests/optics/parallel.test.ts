@@ -34,7 +34,7 @@ describe("propagateMany", () => {
     );
     const withNaN = new Float64Array(12);
     withNaN[8] = Number.NaN;
-    await expect(propagateMany(SETUP, TERMS, withNaN)).rejects.toThrow("coefficient 2 of wavefront 1 must be a finite number");
+    await expect(propagateMany(SETUP, TERMS, withNaN)).rejects.toThrow("coefficient of Noll term 6 must be a finite number (wavefront 1)");
   });
 
   it("stops when cancelled", async () => {

@@ -19,7 +19,7 @@ describe("BatchEvaluator", () => {
   });
 
   it("rejects bad input before any thread starts work", async () => {
-    await expect(evaluator.evaluate([1, 2, 3, NaN])).rejects.toThrow(new RangeError("coefficient of Z11 must be a finite number (wavefront 0)"));
+    await expect(evaluator.evaluate([1, 2, 3, NaN])).rejects.toThrow(new RangeError("coefficient of Noll term 11 must be a finite number (wavefront 0)"));
     expect(() => new BatchEvaluator(model, 0)).toThrow(new RangeError("threads must be a positive integer"));
   });
 });

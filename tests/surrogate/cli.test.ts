@@ -167,7 +167,7 @@ describe("stillpoint eval", () => {
     );
     write("nan.json", '{"ordering":"ansi","coefficientsNm":{"4":"x"}}');
     expect(stillpoint("eval", "--model", "model.stpm", "--wfe", "nan.json").stderr).toBe(
-      "stillpoint eval: wavefront: coefficient of ansi term 4 must be a finite number\n",
+      "stillpoint eval: wavefront: coefficient of ANSI term 4 must be a finite number\n",
     );
   });
 });

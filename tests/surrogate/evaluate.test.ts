@@ -48,13 +48,13 @@ describe("evaluateMap and evaluateBatch", () => {
   });
 
   it("rejects NaN, infinity and wrong lengths with exact messages", () => {
-    expect(() => evaluateMap(model, [1, NaN, 0, 0])).toThrow(new RangeError("coefficient of Z5 must be a finite number"));
-    expect(() => evaluateMap(model, [1, 0, Infinity, 0])).toThrow(new RangeError("coefficient of Z6 must be a finite number"));
+    expect(() => evaluateMap(model, [1, NaN, 0, 0])).toThrow(new RangeError("coefficient of Noll term 5 must be a finite number"));
+    expect(() => evaluateMap(model, [1, 0, Infinity, 0])).toThrow(new RangeError("coefficient of Noll term 6 must be a finite number"));
     expect(() => evaluateMap(model, [1, 0, 0])).toThrow(
-      new RangeError("wavefront must have 4 coefficients (one per term of the model's Zernike set)"),
+      new RangeError("expected 4 coefficients (one per term), got 3"),
     );
     expect(() => evaluateBatch(model, [0, 0, 0, 0, 0, 0, 0, -Infinity])).toThrow(
-      new RangeError("coefficient of Z11 must be a finite number (wavefront 1)"),
+      new RangeError("coefficient of Noll term 11 must be a finite number (wavefront 1)"),
     );
     expect(evaluateBatch(model, [])).toHaveLength(0);
   });
