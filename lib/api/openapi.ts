@@ -1,4 +1,5 @@
 import { z } from "zod";
+import { SURROGATE_NOTICE } from "../surrogate/model";
 import { setupSchema } from "../validation/setup";
 import { meSchema } from "../validation/user";
 
@@ -19,8 +20,7 @@ export function openApiDocument() {
     info: {
       title: "Stillpoint API",
       version: "1",
-      description:
-        "Tilt-to-length surrogate model registry. Surrogate results are engineering estimates within the model's validity range; decisions about flight hardware rest on the exact calculation and the mission's own review.",
+      description: `Tilt-to-length surrogate model registry. ${SURROGATE_NOTICE}`,
     },
     servers: [{ url: "/" }],
     components: {
