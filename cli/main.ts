@@ -5,6 +5,8 @@ const COMMANDS: Record<string, string> = {
   ttl: "exact TTL map(s) of wavefront(s) on a setup, JSON on stdout",
   train: "train a surrogate model locally and write a .stpm file",
   eval: "evaluate a .stpm model for wavefront(s), JSON on stdout",
+  push: "register a local .stpm model as a new draft version on a server",
+  worker: "take training work from the shared queue (REDIS_URL, DATABASE_URL)",
 };
 
 const USAGE = [

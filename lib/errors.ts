@@ -62,3 +62,9 @@ export class ServiceUnavailableError extends DomainError {
     super(message);
   }
 }
+
+/** A body that is not what the route reads at all (not JSON, not multipart). */
+export class BadRequestError extends DomainError {
+  readonly status = 400;
+  readonly title = "Malformed request";
+}

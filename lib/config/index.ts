@@ -31,7 +31,8 @@ const configSchema = z.object({
   WORKER_LOCK_MS: z.coerce.number().int().min(1000).max(600_000).default(30_000),
   NEXTAUTH_SECRET: z
     .string({ error: "is required (scripts/start.sh creates one in .data/auth-secret)" })
-    .min(32, "must be at least 32 characters"),
+    .min(32, "must be at least 32 characters")
+    .optional(),
 });
 
 export interface AppConfig {
@@ -45,7 +46,8 @@ export interface AppConfig {
   };
   redisUrl: string;
   queue: { prefix: string; workerThreads: number | null; lockMs: number };
-  authSecret: string;
+  /** The session-signing secret; only the web server needs it (see requireAuthSecret). */
+  authSecret: string | null;
 }
 
 export class ConfigError extends Error {
@@ -83,7 +85,7 @@ export function parseConfig(env: Record<string, string | undefined>): AppConfig 
     database,
     redisUrl: e.REDIS_URL,
     queue: { prefix: e.QUEUE_PREFIX, workerThreads: e.WORKER_THREADS ?? null, lockMs: e.WORKER_LOCK_MS },
-    authSecret: e.NEXTAUTH_SECRET,
+    authSecret: e.NEXTAUTH_SECRET ?? null,
   };
 }
 
@@ -93,4 +95,12 @@ let cached: AppConfig | undefined;
 export function getConfig(): AppConfig {
   cached ??= parseConfig(process.env);
   return cached;
+}
+
+/** The session secret, which serving the app requires (workers and the CLI do without). */
+export function requireAuthSecret(config: AppConfig = getConfig()): string {
+  if (config.authSecret === null) {
+    throw new ConfigError("Stillpoint configuration is invalid:\n  NEXTAUTH_SECRET: is required to serve the app (scripts/start.sh creates one in .data/auth-secret)");
+  }
+  return config.authSecret;
 }
