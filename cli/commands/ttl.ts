@@ -1,9 +1,8 @@
 import {
-  thetaGridNrad, toTtlMap, undefinedNodesWarning, unionNollIndices, validateSetup, wavefrontToVector, type Wavefront,
+  thetaGridNrad, toTtlMap, undefinedNodesWarning, unionNollIndices, validateSetup, wavefrontToVector,
 } from "../../lib/optics/index.ts";
 import { propagateMany } from "../../lib/parallel/index.ts";
-import { CliError } from "../errors.ts";
-import { parseOptions, parseThreads, readJsonFile, writeJson } from "../io.ts";
+import { parseOptions, parseThreads, readJsonFile, readWavefronts, writeJson } from "../io.ts";
 
 /** Below this many wavefronts, starting worker threads costs more than it saves. */
 const PARALLEL_FROM = 64;
@@ -15,10 +14,7 @@ const PARALLEL_FROM = 64;
 export async function run(argv: string[]): Promise<number> {
   const options = parseOptions(argv, ["setup", "wfe"], ["threads"]);
   const setup = validateSetup(await readJsonFile(options.setup, "setup"));
-  const input = await readJsonFile(options.wfe, "wavefront");
-  const single = !Array.isArray(input);
-  const wavefronts = (single ? [input] : input) as Wavefront[];
-  if (wavefronts.length === 0) throw new CliError("wavefront file holds an empty array");
+  const { single, items: wavefronts } = await readWavefronts(options.wfe);
 
   const noll = unionNollIndices(wavefronts);
   const terms = Math.max(noll.length, 1);

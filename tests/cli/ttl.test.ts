@@ -64,7 +64,7 @@ describe("stillpoint ttl", () => {
   it.each([
     [["--setup", "missing.json", "--wfe", "one.json"], /^stillpoint ttl: cannot read setup file .*missing\.json \(ENOENT\)\n$/],
     [["--setup", "bad-setup.json", "--wfe", "one.json"], /^stillpoint ttl: pupilSamples must be an integer between 32 and 1024\n$/],
-    [["--setup", "setup.json", "--wfe", "bad-wfe.json"], /^stillpoint ttl: coefficient of Noll term 4 must be a finite number\n$/],
+    [["--setup", "setup.json", "--wfe", "bad-wfe.json"], /^stillpoint ttl: wavefront: coefficient of Noll term 4 must be a finite number\n$/],
     [["--setup", "setup.json", "--wfe", "broken.json"], /^stillpoint ttl: wavefront file .*broken\.json is not valid JSON: .*\n$/],
     [["--setup", "setup.json"], /^stillpoint ttl: missing --wfe\n$/],
     [["--setup", "setup.json", "--wfe", "one.json", "--threads", "0"], /^stillpoint ttl: --threads must be a positive integer\n$/],
