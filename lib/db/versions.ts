@@ -327,3 +327,45 @@ export async function uploadVersion(actor: Actor, slug: string, file: Uint8Array
   const { version } = await conn.transaction((trx) => insertVersion(trx, { model, surrogate, file, createdBy: actor.userId }));
   return getVersion(actor, slug, version, conn);
 }
+
+/**
+ * Retire a released version (admins): it stays readable and, until its sunset, evaluable with deprecation headers.
+ * The state change and its audit event are one transaction.
+ * @throws {ConflictError} unless the version is released; {UnprocessableError} for a sunset in the past or an unusable successor
+ */
+export async function retireVersion(
+  actor: Actor,
+  slug: string,
+  version: number,
+  input: { reason: string; sunsetAt: string; successorVersion: number | null },
+  now = new Date(),
+  conn: Knex = db(),
+): Promise<VersionDetail> {
+  assertCan(actor, "admin", slug);
+  const model = await requireModel(actor, slug, conn);
+  if (Date.parse(input.sunsetAt) <= now.getTime()) throw new UnprocessableError("sunsetAt must lie in the future.");
+  await conn.transaction(async (trx) => {
+    const row = await versionRow(model, version, trx, true);
+    if (row.state !== "released") throw new ConflictError(`Version ${version} is ${row.state}; only a released version can be retired.`);
+    let successorId: number | null = null;
+    if (input.successorVersion !== null) {
+      if (input.successorVersion === version) throw new UnprocessableError("A version cannot be its own successor.");
+      const successor: { id: number; state: VersionState } | undefined = await trx("model_versions").where({ model_id: model.id, version: input.successorVersion }).first();
+      if (!successor || successor.state === "retired") {
+        throw new UnprocessableError(`successorVersion ${input.successorVersion} is not a live version of "${slug}".`);
+      }
+      successorId = successor.id;
+    }
+    await changeVersionState(trx, row.id, "retired", actor.userId, input.reason, {
+      retired_reason: input.reason,
+      retired_at: now,
+      sunset_at: new Date(input.sunsetAt),
+      successor_version_id: successorId,
+    });
+    await recordAuditEvent(
+      { actorUserId: actor.userId, action: "version.retire", subjectType: "model_version", subjectId: row.id, detail: { model: slug, version, ...input } },
+      trx,
+    );
+  });
+  return getVersion(actor, slug, version, conn);
+}
