@@ -3,7 +3,7 @@
 // Usage: node --import tsx bench/surrogate_eval.ts FULL.stpm PRUNED.stpm  -> one JSON line.
 import { readFileSync } from "node:fs";
 import { availableParallelism } from "node:os";
-import { BatchEvaluator } from "../lib/surrogate/batchThreads.ts";
+import { createComputePool } from "../lib/parallel/index.ts";
 import { decodeModel, evaluateBatch, evaluateInto, randomDesign } from "../lib/surrogate/index.ts";
 
 const [fullPath, prunedPath] = process.argv.slice(2);
@@ -39,15 +39,15 @@ for (let r = 0; r < 3; r++) {
   oneThreadBest = Math.min(oneThreadBest, performance.now() - start);
 }
 const threads = availableParallelism();
-const evaluator = new BatchEvaluator(full, threads);
-await evaluator.evaluate(many.subarray(0, 400 * J)); // workers started and warm
+const pool = createComputePool({ threads });
+await pool.evaluateBatch(full, many.subarray(0, 400 * J)); // workers started and warm
 let allBest = Infinity;
 for (let r = 0; r < 5; r++) {
   const start = performance.now();
-  await evaluator.evaluate(many);
+  await pool.evaluateBatch(full, many);
   allBest = Math.min(allBest, performance.now() - start);
 }
-await evaluator.close();
+await pool.close();
 console.log(JSON.stringify({
   fullMs, prunedMs, threads,
   oneThreadMapsPerSecond: BATCH / (oneThreadBest / 1000),
