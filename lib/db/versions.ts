@@ -146,17 +146,20 @@ async function versionRow(model: ModelRecord, version: number, conn: Knex, forUp
   return row;
 }
 
-/** Whether the actor may see a version in this state: drafts and versions in review only for modellers and reviewers. */
-export function seesVersionState(actor: Actor, state: VersionState): boolean {
+/**
+ * Whether the actor may evaluate a version in this state (API.md "Evaluate"): tokens only released and retired
+ * versions; drafts and versions in review only signed-in modellers and reviewers. Reading a version's record is open
+ * to every reader.
+ */
+export function evaluatesVersionState(actor: Actor, state: VersionState): boolean {
   if (state === "released" || state === "retired") return true;
-  return actor.via === "session" ? actor.roles.includes("modeller") || actor.roles.includes("reviewer") || actor.roles.includes("admin") : actor.scopes?.includes("train") === true;
+  return actor.via === "session" && (actor.roles.includes("modeller") || actor.roles.includes("reviewer"));
 }
 
 export async function getVersion(actor: Actor, slug: string, version: number, conn: Knex = db()): Promise<VersionDetail> {
   assertCan(actor, "read", slug);
   const model = await requireModel(actor, slug, conn);
   const row = await versionRow(model, version, conn);
-  if (!seesVersionState(actor, row.state)) throw new NotFoundError(`Model "${slug}" has no version ${version}.`);
   return toDetail(row, model, conn);
 }
 
@@ -165,7 +168,7 @@ export async function listVersions(actor: Actor, slug: string, conn: Knex = db()
   const model = await requireModel(actor, slug, conn);
   const rows: VersionRow[] = await conn("model_versions").where({ model_id: model.id }).orderBy("version");
   const out: VersionDetail[] = [];
-  for (const row of rows) if (seesVersionState(actor, row.state)) out.push(await toDetail(row, model, conn));
+  for (const row of rows) out.push(await toDetail(row, model, conn));
   return out;
 }
 
