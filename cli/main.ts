@@ -1,3 +1,4 @@
+import { SURROGATE_NOTICE } from "../lib/surrogate/model.ts";
 import { CliError } from "./errors.ts";
 
 /** Every command lives in `cli/commands/<name>.ts` and exports `run(argv): Promise<number>`. */
@@ -14,8 +15,7 @@ const USAGE = [
   "",
   ...Object.entries(COMMANDS).map(([name, text]) => `  ${name.padEnd(8)} ${text}`),
   "",
-  "Surrogate results are engineering estimates within the model's validity range;",
-  "hardware decisions rest on the exact calculation and the mission's own review.",
+  SURROGATE_NOTICE,
 ].join("\n");
 
 export async function main(argv: string[]): Promise<number> {
