@@ -1,34 +1,11 @@
-import { spawnSync } from "node:child_process";
-import { mkdtempSync, readdirSync, readFileSync, writeFileSync, existsSync } from "node:fs";
-import { tmpdir } from "node:os";
+import { readFileSync, writeFileSync } from "node:fs";
 import { join } from "node:path";
-import { fileURLToPath } from "node:url";
 import { beforeAll, describe, expect, it } from "vitest";
+import { cliWorkspace, setup, spec } from "./helpers.ts";
 import { encodeModel, firstOrderTerms, randomDesign, SURROGATE_NOTICE } from "../../lib/surrogate/index.ts";
 import { syntheticModel } from "../surrogate/helpers.ts";
 
-const root = fileURLToPath(new URL("../..", import.meta.url));
-const dir = mkdtempSync(join(tmpdir(), "stillpoint-cli-"));
-
-function stillpoint(...args: string[]) {
-  const result = spawnSync(process.execPath, [join(root, "bin/stillpoint.mjs"), ...args], { cwd: dir, encoding: "utf8", timeout: 120_000 });
-  return { code: result.status, stdout: result.stdout, stderr: result.stderr };
-}
-const write = (name: string, value: unknown) => writeFileSync(join(dir, name), typeof value === "string" ? value : JSON.stringify(value));
-
-// A setup and Zernike set other than the demo ones: 1550 nm, 0.2 m aperture, 9 x 9 nodes over +-40 nrad,
-// 64^2 pupil, ANSI indices 3, 4, 5, 7, 8 (Noll 5, 4, 6, 7, 8).
-const setup = {
-  wavelengthNm: 1550, apertureDiameterM: 0.2, beamRadiusM: 0.08, distanceM: 1e9,
-  farField: { halfAngleNrad: 40, pointsPerAxis: 9 }, pupilSamples: 64,
-};
-const spec = {
-  setup,
-  zernike: { ordering: "ansi", indices: [3, 4, 5, 7, 8] },
-  order: 2,
-  generatingSet: { design: "random", size: 80, maxRmsNm: 20, seed: 3 },
-  validationSet: { size: 30, maxRmsNm: 20, seed: 4 },
-};
+const { dir, stillpoint, write } = cliWorkspace();
 const inside = { ordering: "ansi", coefficientsNm: { "4": 6, "3": -4, "8": 3 } };
 const outside = { ordering: "ansi", coefficientsNm: { "4": 30 } };
 
