@@ -1,5 +1,5 @@
 import { ZodError } from "zod";
-import { DomainError, ServiceUnavailableError, UnauthenticatedError } from "../errors";
+import { DomainError, RateLimitedError, ServiceUnavailableError, UnauthenticatedError } from "../errors";
 
 /** RFC 9457 problem details. */
 export interface ProblemDetails {
@@ -23,7 +23,7 @@ export function problemResponse(problem: ProblemDetails, headers: Record<string,
 /** Headers a problem carries with it: the Bearer challenge of a 401, the Retry-After of a 503. */
 export function problemHeaders(error: unknown): Record<string, string> {
   if (error instanceof UnauthenticatedError) return { "www-authenticate": 'Bearer realm="stillpoint"' };
-  if (error instanceof ServiceUnavailableError) return { "retry-after": String(error.retryAfterSeconds) };
+  if (error instanceof ServiceUnavailableError || error instanceof RateLimitedError) return { "retry-after": String(Math.max(1, Math.ceil(error.retryAfterSeconds))) };
   if (isConnectionFailure(error)) return { "retry-after": "5" };
   return {};
 }
@@ -53,7 +53,8 @@ export function toProblem(error: unknown, instance?: string): ProblemDetails {
     };
   }
   if (error instanceof DomainError) {
-    return { type: "about:blank", title: error.title, status: error.status, detail: error.message, instance };
+    const issues = (error as { issues?: { path: string; message: string }[] }).issues;
+    return { type: "about:blank", title: error.title, status: error.status, detail: error.message, instance, ...(issues && issues.length > 0 ? { issues } : {}) };
   }
   if (isConnectionFailure(error)) {
     return { type: "about:blank", title: "Service unavailable", status: 503, detail: "A service the registry depends on is not reachable; retry shortly.", instance };

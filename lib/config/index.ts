@@ -29,6 +29,10 @@ const configSchema = z.object({
   WORKER_THREADS: z.coerce.number().int().min(1).max(256).optional(),
   /** How long a worker holds a job without renewing its lock before another worker takes the job over, ms. */
   WORKER_LOCK_MS: z.coerce.number().int().min(1000).max(600_000).default(30_000),
+  /** Evaluation requests each API token may make per minute (a request of n wavefronts counts 1 + floor((n - 1) / 100)). */
+  RATE_LIMIT_PER_MINUTE: z.coerce.number().int().min(1).max(10_000_000).default(120_000),
+  /** Threads of the web server's compute pool for large evaluation batches (default 2). */
+  SERVER_COMPUTE_THREADS: z.coerce.number().int().min(1).max(64).default(2),
   NEXTAUTH_SECRET: z
     .string({ error: "is required (scripts/start.sh creates one in .data/auth-secret)" })
     .min(32, "must be at least 32 characters")
@@ -46,6 +50,8 @@ export interface AppConfig {
   };
   redisUrl: string;
   queue: { prefix: string; workerThreads: number | null; lockMs: number };
+  rateLimitPerMinute: number;
+  serverComputeThreads: number;
   /** The session-signing secret; only the web server needs it (see requireAuthSecret). */
   authSecret: string | null;
 }
@@ -85,6 +91,8 @@ export function parseConfig(env: Record<string, string | undefined>): AppConfig 
     database,
     redisUrl: e.REDIS_URL,
     queue: { prefix: e.QUEUE_PREFIX, workerThreads: e.WORKER_THREADS ?? null, lockMs: e.WORKER_LOCK_MS },
+    rateLimitPerMinute: e.RATE_LIMIT_PER_MINUTE,
+    serverComputeThreads: e.SERVER_COMPUTE_THREADS,
     authSecret: e.NEXTAUTH_SECRET ?? null,
   };
 }

@@ -108,6 +108,7 @@ export async function revokeToken(actor: Actor, id: number, conn: Knex = db()): 
   const row: TokenRow | undefined = await conn("api_tokens").where({ id }).first();
   if (!row || (row.user_id !== actor.userId && !can(actor, "admin"))) throw new NotFoundError(`There is no token ${id}.`);
   if (row.revoked_at === null) await conn("api_tokens").where({ id }).update({ revoked_at: conn.fn.now(3) });
+  forgetCachedTokens({ tokenId: id });
   await recordAuditEvent({ actorUserId: actor.userId, action: "token.revoke", subjectType: "api_token", subjectId: id }, conn);
 }
 
@@ -115,13 +116,48 @@ export async function revokeToken(actor: Actor, id: number, conn: Knex = db()): 
 export type TokenRefusal = "malformed" | "unknown" | "revoked" | "expired" | "no-role";
 
 /**
+ * How long a checked token is trusted without asking the database again. Revocation in this process forgets it at
+ * once (`forgetCachedTokens`); so do role changes and disabled accounts, which call it with the person's id.
+ */
+export const TOKEN_CACHE_MS = 5_000;
+
+interface CachedToken {
+  actor: Actor;
+  expiresAt: number | null;
+  checkedAt: number;
+}
+
+const holder = globalThis as typeof globalThis & { __stillpointTokenCache?: Map<string, CachedToken> };
+function tokenCache(): Map<string, CachedToken> {
+  holder.__stillpointTokenCache ??= new Map();
+  return holder.__stillpointTokenCache;
+}
+
+/** Forget cached token checks: of one token, of one person's tokens, or all. */
+export function forgetCachedTokens(which: { tokenId?: number; userId?: number } = {}): void {
+  const cache = tokenCache();
+  if (which.tokenId === undefined && which.userId === undefined) return cache.clear();
+  for (const [hash, entry] of cache) {
+    if (entry.actor.tokenId === which.tokenId || entry.actor.userId === which.userId) cache.delete(hash);
+  }
+}
+
+/**
  * The actor a Bearer secret stands for, or why it is refused. The lookup is by the secret's SHA-256 (an index, so
  * its time does not depend on how much of a guess was right), and the stored hash is compared in constant time.
- * Counts the use.
+ * A token checked less than TOKEN_CACHE_MS ago is answered from memory (its expiry still checked against `now`);
+ * its use is counted by `countTokenUse`.
  */
 export async function authenticateToken(secret: string, now = new Date(), conn: Knex = db()): Promise<Actor | TokenRefusal> {
   if (!TOKEN_PATTERN.test(secret)) return "malformed";
   const hash = hashSecret(secret);
+  const cache = tokenCache();
+  const cached = cache.get(hash);
+  if (cached && now.getTime() - cached.checkedAt < TOKEN_CACHE_MS) {
+    if (cached.expiresAt !== null && cached.expiresAt <= now.getTime()) return "expired";
+    countTokenUse(cached.actor.tokenId!, now);
+    return cached.actor;
+  }
   const row: (TokenRow & { email: string }) | undefined = await conn("api_tokens")
     .join("users", "users.id", "api_tokens.user_id")
     .select("api_tokens.*", "users.email")
@@ -133,8 +169,7 @@ export async function authenticateToken(secret: string, now = new Date(), conn: 
   const roleRows: { role: string }[] = await conn("user_roles").select("role").where({ user_id: row.user_id });
   const roles = roleRows.map((r) => r.role).filter(isRole) as Role[];
   if (roles.length === 0) return "no-role";
-  await conn("api_tokens").where({ id: row.id }).update({ last_used_at: conn.fn.now(3), use_count: conn.raw("use_count + 1") });
-  return {
+  const actor: Actor = {
     userId: row.user_id,
     email: row.email,
     roles,
@@ -143,4 +178,75 @@ export async function authenticateToken(secret: string, now = new Date(), conn: 
     models: row.models === null ? null : fromJson<string[]>(row.models),
     tokenId: row.id,
   };
+  if (cache.size > 10_000) cache.clear();
+  cache.set(hash, { actor, expiresAt: row.expires_at === null ? null : new Date(row.expires_at).getTime(), checkedAt: now.getTime() });
+  countTokenUse(row.id, now);
+  return actor;
+}
+
+// ---- usage, counted in memory and written about once a second (not a database write per request) ----
+
+interface UsageTally {
+  uses: Map<number, { count: number; lastUsedAt: Date }>;
+  evaluations: Map<string, { tokenId: number; versionId: number; day: string; requests: number; wavefronts: number; lastUsedAt: Date }>;
+  timer: NodeJS.Timeout | null;
+}
+const usageHolder = globalThis as typeof globalThis & { __stillpointUsage?: UsageTally };
+function tally(): UsageTally {
+  usageHolder.__stillpointUsage ??= { uses: new Map(), evaluations: new Map(), timer: null };
+  return usageHolder.__stillpointUsage;
+}
+
+/** How often counted usage reaches the database, ms. */
+export const USAGE_FLUSH_MS = 1_000;
+
+function scheduleFlush(): void {
+  const t = tally();
+  if (t.timer) return;
+  t.timer = setTimeout(() => {
+    t.timer = null;
+    void flushTokenUsage().catch((error: Error) => console.error(`could not record token usage: ${error.message}`));
+  }, USAGE_FLUSH_MS);
+  t.timer.unref?.();
+}
+
+function countTokenUse(tokenId: number, now: Date): void {
+  const entry = tally().uses.get(tokenId);
+  if (entry) {
+    entry.count += 1;
+    entry.lastUsedAt = now;
+  } else tally().uses.set(tokenId, { count: 1, lastUsedAt: now });
+  scheduleFlush();
+}
+
+/** Count an evaluation of a version by a token (for the retirement notices). */
+export function countEvaluation(tokenId: number, versionId: number, wavefronts: number, now = new Date()): void {
+  const day = now.toISOString().slice(0, 10);
+  const key = `${tokenId}:${versionId}:${day}`;
+  const entry = tally().evaluations.get(key);
+  if (entry) {
+    entry.requests += 1;
+    entry.wavefronts += wavefronts;
+    entry.lastUsedAt = now;
+  } else tally().evaluations.set(key, { tokenId, versionId, day, requests: 1, wavefronts, lastUsedAt: now });
+  scheduleFlush();
+}
+
+/** Write the counted usage now (also called by tests and on shutdown). */
+export async function flushTokenUsage(conn: Knex = db()): Promise<void> {
+  const t = tally();
+  const uses = [...t.uses.entries()];
+  const evaluations = [...t.evaluations.values()];
+  t.uses.clear();
+  t.evaluations.clear();
+  for (const [id, use] of uses) {
+    await conn("api_tokens").where({ id }).update({ use_count: conn.raw("use_count + ?", [use.count]), last_used_at: use.lastUsedAt });
+  }
+  for (const e of evaluations) {
+    await conn.raw(
+      `INSERT INTO token_version_usage (token_id, version_id, day, requests, wavefronts, last_used_at) VALUES (?, ?, ?, ?, ?, ?)
+       ON DUPLICATE KEY UPDATE requests = requests + VALUES(requests), wavefronts = wavefronts + VALUES(wavefronts), last_used_at = VALUES(last_used_at)`,
+      [e.tokenId, e.versionId, e.day, e.requests, e.wavefronts, e.lastUsedAt],
+    );
+  }
 }

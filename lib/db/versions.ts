@@ -372,3 +372,50 @@ export async function retireVersion(
   });
   return getVersion(actor, slug, version, conn);
 }
+
+/** What evaluation needs to know of a version before it computes anything (one indexed query). */
+export interface EvaluationTarget {
+  versionId: number;
+  model: string;
+  version: number;
+  state: VersionState;
+  coefficientsSha256: string;
+  retiredAt: string | null;
+  sunsetAt: string | null;
+  successorVersion: number | null;
+}
+
+export async function evaluationTarget(slug: string, version: number, conn: Knex = db()): Promise<EvaluationTarget | null> {
+  const row:
+    | { id: number; version: number; state: VersionState; coefficients_sha256: string; retired_at: Date | null; sunset_at: Date | null; successor: number | null }
+    | undefined = await conn("model_versions")
+    .join("models", "models.id", "model_versions.model_id")
+    .leftJoin("model_versions as successor", "successor.id", "model_versions.successor_version_id")
+    .select("model_versions.id", "model_versions.version", "model_versions.state", "model_versions.coefficients_sha256", "model_versions.retired_at", "model_versions.sunset_at", "successor.version as successor")
+    .where("models.slug", slug)
+    .where("model_versions.version", version)
+    .first();
+  if (!row) return null;
+  return {
+    versionId: row.id,
+    model: slug,
+    version: row.version,
+    state: row.state,
+    coefficientsSha256: row.coefficients_sha256,
+    retiredAt: toIso(row.retired_at),
+    sunsetAt: toIso(row.sunset_at),
+    successorVersion: row.successor,
+  };
+}
+
+/**
+ * The decoded surrogate of a version by id, its blob checked against the stored SHA-256 and decoded (which checks
+ * the file's own checksums). No permission check: for the evaluation cache, after the caller was checked.
+ */
+export async function loadSurrogateById(versionId: number, conn: Knex = db()): Promise<SurrogateModel> {
+  const blob: { bytes: Buffer; sha256: string } | undefined = await conn("version_blobs").where({ version_id: versionId }).first();
+  if (!blob) throw new Error(`version ${versionId} has no coefficient blob`);
+  const bytes = new Uint8Array(blob.bytes.buffer, blob.bytes.byteOffset, blob.bytes.byteLength);
+  if (sha256Hex(bytes) !== blob.sha256) throw new Error(`the stored coefficients of version ${versionId} do not match their checksum`);
+  return decodeModel(bytes);
+}
