@@ -4,6 +4,7 @@ import { LIST_LIMIT_DEFAULT, LIST_LIMIT_MAX } from "../validation/list";
 import { createModelSchema, createSetupSchema, createTokenSchema, VERSION_STATES } from "../validation/registry";
 import { setupSchema } from "../validation/setup";
 import { versionTrainingSchema } from "../validation/training";
+import { evaluateBodySchema } from "../validation/evaluate";
 import { meSchema } from "../validation/user";
 import { zernikeSetSchema } from "../validation/zernike";
 
@@ -20,15 +21,17 @@ const problem = (description: string) => ({
   content: { "application/problem+json": { schema: ref("Problem") } },
 });
 
-type Status = "400" | "401" | "403" | "404" | "409" | "413" | "422" | "503";
+type Status = "400" | "401" | "403" | "404" | "409" | "410" | "413" | "422" | "429" | "503";
 const PROBLEMS: Record<Status, string> = {
   "400": "The body is not JSON (or not the multipart form expected)",
   "401": "No credentials, or a token that is unknown, expired or revoked (WWW-Authenticate: Bearer)",
   "403": "Authenticated but not allowed: role, scope, model list, or a token where only a session may act",
   "404": "No such resource, or one the caller may not see",
   "409": "The resource is not in a state that allows this",
+  "410": "The version was retired and its sunset has passed",
   "413": "The body is over the size limit",
   "422": "The request does not validate; issues lists every problem with its path",
+  "429": "Over the token's rate limit; retry after Retry-After seconds",
   "503": "The database or the job queue is down; retry after Retry-After seconds",
 };
 
@@ -130,6 +133,20 @@ const OPERATIONS: Operation[] = [
     },
     problems: ["401", "403", "404", "422"],
   },
+  {
+    method: "post", path: "/api/v1/models/{slug}/versions/{version}/evaluate", id: "evaluateVersion",
+    summary: "Evaluate wavefronts against a pinned version: maps, offsets or peaks", who: "evaluate scope, or any signed-in person (drafts and versions in review: signed-in modellers and reviewers)",
+    body: { content: json(ref("EvaluateRequest")) },
+    ok: {
+      status: "200", description: "One result per wavefront, in order, with the version, its checksum and the notice", content: json(ref("EvaluateAnswer")),
+      headers: {
+        Deprecation: { schema: { type: "string" }, description: "RFC 9745, for a retired version before its sunset: @<unix seconds>" },
+        Sunset: { schema: { type: "string" }, description: "RFC 8594 HTTP-date of the sunset" },
+        Link: { schema: { type: "string" }, description: '<...versions/{successor}>; rel="successor-version"' },
+      },
+    },
+    problems: ["400", "401", "403", "404", "410", "413", "422", "429", "503"],
+  },
   { method: "post", path: "/api/v1/models/{slug}/versions/{version}/submit", id: "submitVersion", summary: "Submit a draft for review", who: "its modeller (session or train token)", ok: { status: "200", description: "The version, in-review", content: json(ref("Version")) }, problems: ["401", "403", "404", "409"] },
   {
     method: "post", path: "/api/v1/models/{slug}/generating-sets", id: "uploadGeneratingSet", summary: "Upload a generating set (.npz from numpy.savez or savez_compressed)", who: "modeller / train",
@@ -220,6 +237,32 @@ export function openApiDocument() {
         CreateModel: jsonSchema(createModelSchema),
         CreateToken: jsonSchema(createTokenSchema),
         TrainVersion: jsonSchema(versionTrainingSchema),
+        EvaluateRequest: jsonSchema(evaluateBodySchema),
+        EvaluateAnswer: {
+          type: "object",
+          required: ["model", "version", "state", "coefficientsSha256", "thetaNrad", "results", "notice"],
+          properties: {
+            model: { type: "string" }, version: { type: "integer" }, state: { enum: [...VERSION_STATES] }, coefficientsSha256: { type: "string" },
+            thetaNrad: { type: "array", items: { type: "number" } },
+            results: {
+              type: "array",
+              items: {
+                type: "object",
+                required: ["peakAbsTtlPmPerNrad", "peakAt", "validity"],
+                properties: {
+                  ttlXPmPerNrad: { type: "array", items: { type: "array", items: { type: "number" } }, description: "[iy][ix], output map only" },
+                  ttlYPmPerNrad: { type: "array", items: { type: "array", items: { type: "number" } } },
+                  offsets: { type: "array", items: { type: "object", properties: { thetaXNrad: { type: "number" }, thetaYNrad: { type: "number" }, ttlXPmPerNrad: { type: "number" }, ttlYPmPerNrad: { type: "number" } } } },
+                  peakAbsTtlPmPerNrad: { type: "number" },
+                  peakAt: { type: "object", properties: { thetaXNrad: { type: "number" }, thetaYNrad: { type: "number" }, axis: { enum: ["x", "y"] } } },
+                  peakLengthNoisePm: { type: "number", description: "jitterNrad * max sqrt(c_x^2 + c_y^2), with jitterNrad only" },
+                  validity: { type: "object", properties: { inRange: { type: "boolean" }, warnings: { type: "array", items: { type: "string" } } } },
+                },
+              },
+            },
+            notice: { type: "string", const: SURROGATE_NOTICE },
+          },
+        },
         SetupItem: {
           type: "object",
           required: ["id", "name", "setup", "derived"],
