@@ -239,6 +239,7 @@ export async function changeVersionState(
 ): Promise<void> {
   await trx("model_versions").where({ id: versionId }).update({ state, ...extra });
   await trx("version_state_events").insert({ version_id: versionId, state, by_user_id: byUserId, comment });
+  forgetEvaluationTargets();
 }
 
 /** `draft` -> `in-review`, by the modeller who made the version (session, or a token with the train scope). */
@@ -385,7 +386,34 @@ export interface EvaluationTarget {
   successorVersion: number | null;
 }
 
+/**
+ * How long a version's evaluation record is trusted without asking the database again. A state change made through
+ * this module (submit, review, retire) forgets it at once; the cache only saves the query on repeated evaluations.
+ */
+export const EVALUATION_TARGET_CACHE_MS = 1_000;
+const targetHolder = globalThis as typeof globalThis & { __stillpointTargets?: Map<string, { target: EvaluationTarget | null; at: number }> };
+function targetCache(): Map<string, { target: EvaluationTarget | null; at: number }> {
+  targetHolder.__stillpointTargets ??= new Map();
+  return targetHolder.__stillpointTargets;
+}
+
+/** Forget cached evaluation records (after a state change). */
+export function forgetEvaluationTargets(): void {
+  targetCache().clear();
+}
+
 export async function evaluationTarget(slug: string, version: number, conn: Knex = db()): Promise<EvaluationTarget | null> {
+  const key = `${slug}/${version}`;
+  const cached = targetCache().get(key);
+  const now = Date.now();
+  if (cached && now - cached.at < EVALUATION_TARGET_CACHE_MS) return cached.target;
+  const target = await queryEvaluationTarget(slug, version, conn);
+  if (targetCache().size > 10_000) targetCache().clear();
+  targetCache().set(key, { target, at: now });
+  return target;
+}
+
+async function queryEvaluationTarget(slug: string, version: number, conn: Knex): Promise<EvaluationTarget | null> {
   const row:
     | { id: number; version: number; state: VersionState; coefficients_sha256: string; retired_at: Date | null; sunset_at: Date | null; successor: number | null }
     | undefined = await conn("model_versions")

@@ -100,7 +100,7 @@ export async function evaluateWavefronts(
   slug: string,
   version: number,
   body: EvaluateBody,
-  options: { now?: Date; pool?: ComputePool | null } = {},
+  options: { now?: Date; pool?: ComputePool | (() => ComputePool) | null } = {},
 ): Promise<EvaluationAnswer> {
   const now = options.now ?? new Date();
   const target = await evaluableTarget(actor, slug, version, now);
@@ -138,7 +138,9 @@ export async function evaluateWavefronts(
   // Maps of every wavefront: row-major S x [c_x map, c_y map].
   let maps: Float64Array;
   if (options.pool && S >= POOL_BATCH_THRESHOLD) {
-    maps = await options.pool.evaluateBatch(model, coefficients);
+    // A getter starts the pool only when a batch first needs it.
+    const pool = typeof options.pool === "function" ? options.pool() : options.pool;
+    maps = await pool.evaluateBatch(model, coefficients);
   } else {
     maps = new Float64Array(S * 2 * nodes);
     for (let i = 0; i < S; i++) evaluateInto(model, coefficients.subarray(i * J, (i + 1) * J), maps.subarray(i * 2 * nodes, (i + 1) * 2 * nodes));

@@ -15,7 +15,7 @@ export const POST = withProblems(async (request: Request, { params }: { params: 
   const number = versionParam(version);
   const body = await readJson(request, evaluateBodySchema);
   await limitEvaluation(actor, body.wavefronts.length);
-  const answer = await evaluateWavefronts(actor, slug, number, body, { pool: serverComputePool() });
+  const answer = await evaluateWavefronts(actor, slug, number, body, { pool: serverComputePool });
   return new Response(answerStream(answer), {
     headers: { "content-type": "application/json", "cache-control": "no-store", ...answer.headers },
   });
