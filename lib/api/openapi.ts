@@ -5,6 +5,7 @@ import { createModelSchema, createSetupSchema, createTokenSchema, VERSION_STATES
 import { setupSchema } from "../validation/setup";
 import { versionTrainingSchema } from "../validation/training";
 import { evaluateBodySchema } from "../validation/evaluate";
+import { exactBodySchema } from "../validation/exact";
 import { meSchema } from "../validation/user";
 import { zernikeSetSchema } from "../validation/zernike";
 
@@ -147,6 +148,14 @@ const OPERATIONS: Operation[] = [
     },
     problems: ["400", "401", "403", "404", "410", "413", "422", "429", "503"],
   },
+  {
+    method: "post", path: "/api/v1/models/{slug}/versions/{version}/exact", id: "exactVersion",
+    summary: "Exact far-field maps of one wavefront on the version's setup, beside the surrogate's and their difference (surrogate - exact)",
+    who: "evaluate scope, or any signed-in person (the same versions as evaluate)",
+    body: { content: json(ref("ExactRequest")) },
+    ok: { status: "200", description: "Exact, surrogate and difference maps (pm/nrad, [iy][ix]; null at far-field nulls), the validity block and the notice", content: json(ref("ExactAnswer")) },
+    problems: ["400", "401", "403", "404", "410", "413", "422", "429", "503"],
+  },
   { method: "post", path: "/api/v1/models/{slug}/versions/{version}/submit", id: "submitVersion", summary: "Submit a draft for review", who: "its modeller (session or train token)", ok: { status: "200", description: "The version, in-review", content: json(ref("Version")) }, problems: ["401", "403", "404", "409"] },
   {
     method: "post", path: "/api/v1/models/{slug}/generating-sets", id: "uploadGeneratingSet", summary: "Upload a generating set (.npz from numpy.savez or savez_compressed)", who: "modeller / train",
@@ -260,6 +269,22 @@ export function openApiDocument() {
                 },
               },
             },
+            notice: { type: "string", const: SURROGATE_NOTICE },
+          },
+        },
+        ExactRequest: jsonSchema(exactBodySchema),
+        ExactAnswer: {
+          type: "object",
+          required: ["model", "version", "state", "coefficientsSha256", "thetaNrad", "exact", "surrogate", "differencePmPerNrad", "maxAbsDifferencePmPerNrad", "maxAbsDifferenceAt", "validity", "notice"],
+          properties: {
+            model: { type: "string" }, version: { type: "integer" }, state: { enum: [...VERSION_STATES] }, coefficientsSha256: { type: "string" },
+            thetaNrad: { type: "array", items: { type: "number" } },
+            exact: { type: "object", properties: { ttlXPmPerNrad: { type: "array", items: { type: "array", items: { type: ["number", "null"] } } }, ttlYPmPerNrad: { type: "array", items: { type: "array", items: { type: ["number", "null"] } } }, peakAbsTtlPmPerNrad: { type: "number" } } },
+            surrogate: { type: "object", properties: { ttlXPmPerNrad: { type: "array", items: { type: "array", items: { type: ["number", "null"] } } }, ttlYPmPerNrad: { type: "array", items: { type: "array", items: { type: ["number", "null"] } } }, peakAbsTtlPmPerNrad: { type: "number" } } },
+            differencePmPerNrad: { type: "object", description: "surrogate - exact per node", properties: { x: { type: "array", items: { type: "array", items: { type: ["number", "null"] } } }, y: { type: "array", items: { type: "array", items: { type: ["number", "null"] } } } } },
+            maxAbsDifferencePmPerNrad: { type: "number" },
+            maxAbsDifferenceAt: { type: ["object", "null"], properties: { thetaXNrad: { type: "number" }, thetaYNrad: { type: "number" }, axis: { enum: ["x", "y"] } } },
+            validity: { type: "object", properties: { inRange: { type: "boolean" }, warnings: { type: "array", items: { type: "string" } } } },
             notice: { type: "string", const: SURROGATE_NOTICE },
           },
         },

@@ -65,6 +65,10 @@ const RULES: Record<string, Rule> = {
     permission: "evaluate", modelScoped: true, path: () => "/api/v1/models/velora-transmit/versions/2/evaluate",
     body: () => ({ wavefronts: [{ ordering: "noll", coefficientsNm: { "4": 1 } }], output: "summary" }),
   },
+  "POST /api/v1/models/{slug}/versions/{version}/exact": {
+    permission: "evaluate", modelScoped: true, path: () => "/api/v1/models/velora-transmit/versions/2/exact",
+    body: () => ({ wavefront: { ordering: "noll", coefficientsNm: { "4": 1 } } }),
+  },
   "POST /api/v1/models/{slug}/generating-sets": {
     permission: "train", modelScoped: true, path: () => `/api/v1/models/${slug}/generating-sets`,
     raw: () => {
