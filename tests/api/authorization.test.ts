@@ -21,7 +21,7 @@ import { REPO_ROOT } from "../helpers/test-database";
  * rule here fails) x every kind of caller. Refusals are 401 or 403 problem details that carry nothing but the problem.
  */
 
-type Permission = "public" | "tokens" | "read" | "evaluate" | "train";
+type Permission = "public" | "identity" | "tokens" | "read" | "evaluate" | "train" | "train-or-admin";
 interface Rule {
   permission: Permission;
   /** Refused for a token limited to other models. */
@@ -39,7 +39,7 @@ let counter = 0;
 const unique = () => `${process.pid}-${Date.now().toString(36)}-${counter++}`;
 
 const RULES: Record<string, Rule> = {
-  "GET /api/v1/me": { permission: "tokens", modelScoped: false, path: () => "/api/v1/me" },
+  "GET /api/v1/me": { permission: "identity", modelScoped: false, path: () => "/api/v1/me" },
   "GET /api/v1/openapi.json": { permission: "public", modelScoped: false, path: () => "/api/v1/openapi.json" },
   "POST /api/v1/setups/check": { permission: "train", modelScoped: false, path: () => "/api/v1/setups/check", body: () => VELORA_SETUP },
   "POST /api/v1/tokens": { permission: "tokens", modelScoped: false, path: () => "/api/v1/tokens", body: () => ({ name: "matrix", scopes: ["read"], expiresAt: null, models: null }) },
@@ -48,7 +48,8 @@ const RULES: Record<string, Rule> = {
   "GET /api/v1/setups": { permission: "read", modelScoped: false, path: () => "/api/v1/setups" },
   "POST /api/v1/setups": { permission: "train", modelScoped: false, path: () => "/api/v1/setups", body: () => ({ name: `matrix ${unique()}`, setup: SMALL_SETUP }) },
   "GET /api/v1/models": { permission: "read", modelScoped: false, path: () => "/api/v1/models" },
-  "POST /api/v1/models": { permission: "train", modelScoped: false, path: () => "/api/v1/models", body: () => ({ slug: `matrix-${unique()}`, name: "m", setupId: 1, zernike: SMALL_ZERNIKE }) },
+  // A token limited to some models may not create others.
+  "POST /api/v1/models": { permission: "train", modelScoped: true, path: () => "/api/v1/models", body: () => ({ slug: `matrix-${unique()}`, name: "m", setupId: 1, zernike: SMALL_ZERNIKE }) },
   "GET /api/v1/models/{slug}": { permission: "read", modelScoped: true, path: () => `/api/v1/models/${slug}` },
   "GET /api/v1/models/{slug}/versions": { permission: "read", modelScoped: true, path: () => `/api/v1/models/${slug}/versions` },
   "POST /api/v1/models/{slug}/versions": {
@@ -80,7 +81,8 @@ const RULES: Record<string, Rule> = {
   "GET /api/v1/models/{slug}/generating-sets": { permission: "read", modelScoped: true, path: () => `/api/v1/models/${slug}/generating-sets` },
   "GET /api/v1/runs": { permission: "read", modelScoped: false, path: () => "/api/v1/runs" },
   "GET /api/v1/runs/{id}": { permission: "read", modelScoped: true, path: () => `/api/v1/runs/${runId}` },
-  "POST /api/v1/runs/{id}/cancel": { permission: "read", modelScoped: true, path: () => `/api/v1/runs/${runId}/cancel`, body: () => ({}) },
+  // Its creator (the demo modeller owns these tokens and queued the run) or an admin.
+  "POST /api/v1/runs/{id}/cancel": { permission: "train-or-admin", modelScoped: true, path: () => `/api/v1/runs/${runId}/cancel`, body: () => ({}) },
 };
 
 /** `METHOD path` of every handler on disk. */
@@ -130,12 +132,15 @@ function expected(rule: Rule, caller: Caller): 401 | 403 | "allowed" {
   if (caller.kind === "anonymous" || caller.kind === "header") return 401;
   if (caller.kind === "token") {
     if (caller.state) return 401;
+    if (rule.permission === "identity") return "allowed";
     if (rule.permission === "tokens") return 403; // tokens cannot manage tokens or act as a session
-    if (!caller.scopes.includes(rule.permission)) return 403;
+    const scope = rule.permission === "train-or-admin" ? "train" : rule.permission;
+    if (!caller.scopes.includes(scope)) return 403;
     if (caller.models === "other" && rule.modelScoped) return 403;
     return "allowed"; // the demo modeller owns these tokens
   }
   if (rule.permission === "train") return caller.role === "modeller" ? "allowed" : 403;
+  if (rule.permission === "train-or-admin") return caller.role === "modeller" || caller.role === "admin" ? "allowed" : 403;
   return "allowed";
 }
 
