@@ -2,7 +2,7 @@ import { OpenAPIRegistry, OpenApiGeneratorV31 } from "@asteasolutions/zod-to-ope
 import { z } from "zod";
 import { SURROGATE_NOTICE } from "../surrogate/model";
 import { LIST_LIMIT_DEFAULT, LIST_LIMIT_MAX } from "../validation/list";
-import { createModelSchema, createSetupSchema, createTokenSchema, VERSION_STATES } from "../validation/registry";
+import { createModelSchema, createSetupSchema, createTokenSchema, retireBodySchema, reviewBodySchema, VERSION_STATES } from "../validation/registry";
 import { setupSchema } from "../validation/setup";
 import { versionTrainingSchema } from "../validation/training";
 import { evaluateBodySchema } from "../validation/evaluate";
@@ -157,6 +157,16 @@ const OPERATIONS: Operation[] = [
     body: { content: json(ref("ExactRequest")) },
     ok: { status: "200", description: "Exact, surrogate and difference maps (pm/nrad, [iy][ix]; null at far-field nulls), the validity block and the notice", content: json(ref("ExactAnswer")) },
     problems: ["400", "401", "403", "404", "410", "413", "422", "429", "503"],
+  },
+  {
+    method: "post", path: "/api/v1/models/{slug}/versions/{version}/review", id: "reviewVersion", summary: "Approve a version in review (-> released) or return it to draft with a comment",
+    who: "a reviewer who did not make the version (session only)", body: { schema: reviewBodySchema },
+    ok: { status: "200", description: "The version after the decision", content: json(ref("Version")) }, problems: ["400", "401", "403", "404", "409", "422"],
+  },
+  {
+    method: "post", path: "/api/v1/models/{slug}/versions/{version}/retire", id: "retireVersion", summary: "Retire a released version with a reason, a sunset and an optional successor",
+    who: "admin (session only)", body: { schema: retireBodySchema },
+    ok: { status: "200", description: "The version, retired", content: json(ref("Version")) }, problems: ["400", "401", "403", "404", "409", "422"],
   },
   { method: "post", path: "/api/v1/models/{slug}/versions/{version}/submit", id: "submitVersion", summary: "Submit a draft for review", who: "its modeller (session or train token)", ok: { status: "200", description: "The version, in-review", content: json(ref("Version")) }, problems: ["401", "403", "404", "409"] },
   {

@@ -21,7 +21,7 @@ import { REPO_ROOT } from "../helpers/test-database";
  * rule here fails) x every kind of caller. Refusals are 401 or 403 problem details that carry nothing but the problem.
  */
 
-type Permission = "public" | "identity" | "tokens" | "read" | "evaluate" | "train" | "train-or-admin";
+type Permission = "public" | "identity" | "tokens" | "read" | "evaluate" | "train" | "train-or-admin" | "review" | "admin";
 interface Rule {
   permission: Permission;
   /** Refused for a token limited to other models. */
@@ -62,6 +62,14 @@ const RULES: Record<string, Rule> = {
   "GET /api/v1/models/{slug}/versions/{version}": { permission: "read", modelScoped: true, path: () => `/api/v1/models/${slug}/versions/1` },
   "GET /api/v1/models/{slug}/versions/{version}/coefficients": { permission: "read", modelScoped: true, path: () => `/api/v1/models/${slug}/versions/1/coefficients` },
   "POST /api/v1/models/{slug}/versions/{version}/submit": { permission: "train", modelScoped: true, path: () => `/api/v1/models/${slug}/versions/1/submit`, body: () => ({}) },
+  // A reviewer's decision and an admin's retirement: sessions only. The draft is not in review: 409 for those allowed.
+  "POST /api/v1/models/{slug}/versions/{version}/review": {
+    permission: "review", modelScoped: true, path: () => `/api/v1/models/${slug}/versions/1/review`, body: () => ({ decision: "return", comment: "matrix" }),
+  },
+  "POST /api/v1/models/{slug}/versions/{version}/retire": {
+    permission: "admin", modelScoped: true, path: () => `/api/v1/models/${slug}/versions/1/retire`,
+    body: () => ({ reason: "matrix", sunsetAt: "2099-01-01T00:00:00Z", successorVersion: null }),
+  },
   "POST /api/v1/models/{slug}/versions/{version}/evaluate": {
     permission: "evaluate", modelScoped: true, path: () => "/api/v1/models/velora-transmit/versions/2/evaluate",
     body: () => ({ wavefronts: [{ ordering: "noll", coefficientsNm: { "4": 1 } }], output: "summary" }),
@@ -133,13 +141,15 @@ function expected(rule: Rule, caller: Caller): 401 | 403 | "allowed" {
   if (caller.kind === "token") {
     if (caller.state) return 401;
     if (rule.permission === "identity") return "allowed";
-    if (rule.permission === "tokens") return 403; // tokens cannot manage tokens or act as a session
+    if (rule.permission === "tokens" || rule.permission === "review" || rule.permission === "admin") return 403; // session only
     const scope = rule.permission === "train-or-admin" ? "train" : rule.permission;
     if (!caller.scopes.includes(scope)) return 403;
     if (caller.models === "other" && rule.modelScoped) return 403;
     return "allowed"; // the demo modeller owns these tokens
   }
   if (rule.permission === "train") return caller.role === "modeller" ? "allowed" : 403;
+  if (rule.permission === "review") return caller.role === "reviewer" ? "allowed" : 403;
+  if (rule.permission === "admin") return caller.role === "admin" ? "allowed" : 403;
   if (rule.permission === "train-or-admin") return caller.role === "modeller" || caller.role === "admin" ? "allowed" : 403;
   return "allowed";
 }
