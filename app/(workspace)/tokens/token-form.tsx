@@ -77,7 +77,8 @@ export function TokenForm({ scopes, models }: { scopes: readonly TokenScope[]; m
     <div className="flex flex-col gap-4">
       {created && (
         <div className="rounded border border-good bg-surface p-3" role="status" data-testid="token-secret">
-          <p className="text-sm font-medium">Token “{created.name}” created. Copy it now: it is not shown again.</p>
+          <p className="text-sm font-medium">Token “{created.name}” created. Copy it now: you will not see it again.</p>
+          <p className="mt-1 text-xs text-muted">Only its hash is stored; if you lose it, revoke it and create another.</p>
           <div className="mt-2 flex items-center gap-2">
             <code className="min-w-0 flex-1 break-all rounded-sm bg-sunken px-2 py-1 font-mono text-xs" data-testid="token-value">
               {created.token}
