@@ -1,5 +1,3 @@
-import { readdirSync, readFileSync, statSync } from "node:fs";
-import path from "node:path";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import type { Actor } from "@/lib/access/actor";
 import { hashPassword } from "@/lib/auth/password";
@@ -14,7 +12,7 @@ import { VELORA_SETUP } from "@/lib/demo/velora";
 import { DEMO_PASSWORD } from "@/seeds/01_demo_accounts";
 import { signIn, startAppServer, type AppServer } from "../helpers/app-server";
 import { actorFor, createTestModel, SMALL_SETUP, SMALL_ZERNIKE } from "../helpers/registry";
-import { REPO_ROOT } from "../helpers/test-database";
+import { apiOperations } from "../helpers/routes";
 
 /**
  * The authorisation matrix of the REST API: every operation found on disk under app/api/v1 (so a new route without a
@@ -92,22 +90,6 @@ const RULES: Record<string, Rule> = {
   // Its creator (the demo modeller owns these tokens and queued the run) or an admin.
   "POST /api/v1/runs/{id}/cancel": { permission: "train-or-admin", modelScoped: true, path: () => `/api/v1/runs/${runId}/cancel`, body: () => ({}) },
 };
-
-/** `METHOD path` of every handler on disk. */
-function operations(): string[] {
-  const found: string[] = [];
-  const walk = (dir: string, segments: string[]) => {
-    for (const entry of readdirSync(dir)) {
-      const full = path.join(dir, entry);
-      if (statSync(full).isDirectory()) walk(full, [...segments, entry.replace(/^\[(.+)\]$/, "{$1}")]);
-      else if (entry === "route.ts") {
-        for (const [, method] of readFileSync(full, "utf8").matchAll(/export const (GET|POST|PUT|PATCH|DELETE)\b/g)) found.push(`${method} /api/v1/${segments.join("/")}`);
-      }
-    }
-  };
-  walk(path.join(REPO_ROOT, "app", "api", "v1"), []);
-  return found.sort();
-}
 
 type Caller =
   | { kind: "anonymous" }
@@ -207,7 +189,7 @@ afterAll(async () => {
 });
 
 describe("the authorisation matrix of /api/v1", () => {
-  const found = operations();
+  const found = apiOperations();
 
   it("has a rule for every operation on disk, and no rule for one that is gone", () => {
     expect(Object.keys(RULES).sort()).toEqual(found);
