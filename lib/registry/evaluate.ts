@@ -231,3 +231,22 @@ export function answerStream(answer: EvaluationAnswer): ReadableStream<Uint8Arra
     },
   });
 }
+
+/**
+ * Load the released versions into the model cache (newest first, as many as the cache holds), so that the first
+ * evaluation after a restart finds its model decoded. Failures are logged, never fatal: requests load on demand.
+ */
+export async function warmModelCache(listReleased: () => Promise<EvaluationTarget[]>, log: (line: string) => void = console.log): Promise<void> {
+  try {
+    const began = performance.now();
+    let loaded = 0;
+    for (const target of await listReleased()) {
+      if (modelCache().bytesUsed > modelCache().maxBytes * 0.8) break;
+      await surrogateFor(target);
+      loaded++;
+    }
+    if (loaded > 0) log(`[stillpoint] ${loaded} released model versions decoded into the cache in ${Math.round(performance.now() - began)} ms`);
+  } catch (error) {
+    log(`[stillpoint] could not warm the model cache: ${(error as Error).message}`);
+  }
+}
