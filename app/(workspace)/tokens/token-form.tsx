@@ -50,13 +50,13 @@ export function TokenForm({ scopes, models }: { scopes: readonly TokenScope[]; m
     resolver: schemaResolver(createTokenSchema, toInput),
     defaultValues: { name: "", scopes: ["read", "evaluate"], expiresAt: "", models: [] },
   });
-  const { formError, apply } = useActionErrors(setError);
+  const { formError, submit } = useActionErrors(setError);
 
   const onSubmit = handleSubmit(async (values) => {
     setCopied(false);
-    const result = await createTokenAction(values);
-    if (apply(result)) {
-      setCreated({ name: result.data.name, token: result.data.token });
+    const data = await submit(() => createTokenAction(values));
+    if (data) {
+      setCreated({ name: data.name, token: data.token });
       reset();
       router.refresh();
     }
