@@ -4,11 +4,16 @@ import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { closeDb } from "@/lib/db/knex";
 import { closeQueueClients } from "@/lib/queue/enqueue";
 import type { WorkerHandle } from "@/lib/queue/worker";
+import { writeNpy } from "@/lib/formats/npy";
+import { writeNpz } from "@/lib/formats/npz";
+import { thetaGridNrad } from "@/lib/optics/setup";
+import { runTtlTask } from "@/lib/parallel/ttlTask";
+import { randomDesign } from "@/lib/surrogate/designs";
 import { decodeModel } from "@/lib/surrogate/modelFile";
 import { DEMO_PASSWORD } from "@/seeds/01_demo_accounts";
 import { startAppServer, type AppServer } from "../helpers/app-server";
 import { launchBrowser, step } from "../helpers/browser";
-import { inProcessWorker } from "../helpers/registry";
+import { inProcessWorker, SMALL_SETUP } from "../helpers/registry";
 
 // The modeller's way from a setup to a version in review, in a real browser (Debian's chromium) against the production
 // build, with a training worker in this process. The steps share one page and run in order.
@@ -192,6 +197,41 @@ describe("a modeller in the browser", () => {
     });
   });
 
+  it("uploads a generating set on the training page and trains a first-order version from it", async () => {
+    await flow("upload-and-train", async () => {
+      // The form's setup is SMALL_SETUP's (Velora optics, 9 x 9 nodes, 32^2 pupil); the exact maps come from the
+      // propagator itself, as a modeller's own tools would have made them.
+      const M = SMALL_SETUP.farField.pointsPerAxis;
+      const noll = [4, 5, 6, 7, 8];
+      const count = 40;
+      const coefficientsNm = randomDesign(5, { size: count, maxRmsNm: 15, seed: 11 });
+      const maps = runTtlTask({ setup: SMALL_SETUP, nollIndices: noll, coefficientsNm, count });
+      const file = writeNpz({
+        noll_indices: writeNpy("<i4", [5], noll),
+        theta_nrad: writeNpy("<f8", [M], thetaGridNrad(SMALL_SETUP.farField)),
+        coefficients_nm: writeNpy("<f8", [count, 5], coefficientsNm),
+        ttl_x_pm_per_nrad: writeNpy("<f8", [count, M, M], maps.x),
+        ttl_y_pm_per_nrad: writeNpy("<f8", [count, M, M], maps.y),
+      });
+      await page.goto(`/models/${slug}/versions/new`);
+      await page.getByLabel("File").setInputFiles({ name: "bench-set.npz", mimeType: "application/zip", buffer: Buffer.from(file) });
+      await page.getByRole("button", { name: "Upload", exact: true }).click();
+      await expect(page.getByTestId("upload-done").textContent({ timeout: 20_000 })).resolves.toMatch(/^Stored as set #\d+: 40 samples/);
+      await page.getByLabel("Order").selectOption("1");
+      await page.getByLabel("Design").selectOption("uploaded");
+      await expect(page.getByLabel("Uploaded set").locator("option:checked").textContent()).resolves.toContain("40 samples · bench-set.npz");
+      await page.getByLabel("Residuals are measured on").selectOption("none");
+      await expect(page.getByTestId("training-cost").textContent()).resolves.toBe("No exact propagation: the fit uses the uploaded maps.");
+      await page.getByRole("button", { name: "Queue training run" }).click();
+      await page.waitForURL(/\/runs\/\d+$/);
+      await page.locator('[data-testid="run-status"][data-state="succeeded"]').waitFor({ timeout: 60_000 });
+      await page.getByRole("link", { name: "Open version 2" }).click();
+      await page.waitForURL(`**/models/${slug}/versions/2`);
+      await page.getByTestId("no-statistics").waitFor();
+      await expect(page.getByTestId("version-state").textContent()).resolves.toBe("draft");
+    });
+  });
+
   it("creates a token, sees its secret once, and a script reads the model with it", async () => {
     await flow("token", async () => {
       await page.goto("/tokens");
@@ -201,7 +241,10 @@ describe("a modeller in the browser", () => {
       expect(secret).toMatch(/^stp_[A-Za-z0-9_-]{43}$/);
       const answer = await fetch(`${server.baseUrl}/api/v1/models/${slug}`, { headers: { authorization: `Bearer ${secret}` } });
       expect(answer.status).toBe(200);
-      expect((await answer.json()).versions).toEqual([{ version: 1, order: 2, state: "in-review", termCount: 21 }]);
+      expect((await answer.json()).versions).toEqual([
+        { version: 1, order: 2, state: "in-review", termCount: 21 },
+        { version: 2, order: 1, state: "draft", termCount: 6 },
+      ]);
       await page.reload();
       await expect(page.getByTestId("token-value").count()).resolves.toBe(0);
       await expect(page.getByTestId("tokens-table").textContent()).resolves.toContain(`browser-script-${tag}`);
