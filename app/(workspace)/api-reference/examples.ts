@@ -23,10 +23,10 @@ export function curlExample(t: ExampleTarget): string {
 export STILLPOINT_TOKEN='stp_...'
 
 # List the models you may read, with their latest released version
-curl -sS -H "Authorization: Bearer $STILLPOINT_TOKEN" "${t.baseUrl}/api/v1/models"
+curl -sS -w '\\n' -H "Authorization: Bearer $STILLPOINT_TOKEN" "${t.baseUrl}/api/v1/models"
 
 # Evaluate a wavefront (nm RMS by Noll index) on ${t.slug} v${t.version}: both TTL maps, the peak, 8 nrad jitter noise
-curl -sS -X POST "${v}/evaluate" \\
+curl -sS -w '\\n' -X POST "${v}/evaluate" \\
   -H "Authorization: Bearer $STILLPOINT_TOKEN" \\
   -H "Content-Type: application/json" \\
   -d '${JSON.stringify(evaluateBody(t))}'

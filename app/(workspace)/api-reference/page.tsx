@@ -59,8 +59,10 @@ export default async function ApiReferencePage() {
                   {operations.map((o) => (
                     <li key={o.anchor}>
                       <a href={`#${o.anchor}`} className="flex items-center gap-1 py-0.5 hover:underline">
-                        <span className="w-10 font-mono uppercase text-muted">{o.method}</span>
-                        <span className="truncate font-mono">{o.path.replace(/^\/api\/v1/, "")}</span>
+                        <span className="w-12 shrink-0 font-mono uppercase text-muted">{o.method}</span>
+                        <span className="truncate font-mono" title={o.path}>
+                          {o.path.replace(/^\/api\/v1/, "").replace("/models/{slug}/versions/{version}", "…/{version}").replace("/models/{slug}", "…/{slug}")}
+                        </span>
                       </a>
                     </li>
                   ))}

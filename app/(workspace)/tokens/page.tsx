@@ -28,7 +28,7 @@ export default async function TokensPage() {
         <TokenForm scopes={scopes} models={models.items.map((m) => ({ slug: m.slug, name: m.name }))} />
       </section>
       <section aria-labelledby="tokens-heading">
-        <SectionHeading id="tokens-heading" aside={<span className="text-xs text-muted">{tokens.length} tokens</span>}>
+        <SectionHeading id="tokens-heading" aside={<span className="text-xs text-muted">{tokens.length === 1 ? "1 token" : `${tokens.length} tokens`}</span>}>
           Your tokens
         </SectionHeading>
         {tokens.length === 0 ? (

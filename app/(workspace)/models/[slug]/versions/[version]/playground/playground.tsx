@@ -12,6 +12,8 @@ import type { ValidityRange } from "@/lib/surrogate/validity";
 
 /** How long the sliders must rest before a request goes out, ms (a drag sends a request every few frames). */
 const DEBOUNCE_MS = 25;
+/** Side of each map in px: both maps, the colour bar and the validity block fit one row beside the sliders. */
+const MAP_SIZE = 212;
 
 interface EvaluateAnswer {
   state: string;
@@ -179,7 +181,7 @@ export function Playground({
   const worstDifference = exact?.answer.maxAbsDifferenceAt ? nodeOf(exact.answer.maxAbsDifferenceAt.thetaXNrad, exact.answer.maxAbsDifferenceAt.thetaYNrad) : null;
 
   return (
-    <div className="grid gap-6 xl:grid-cols-[1fr_22rem]">
+    <div className="grid gap-6 xl:grid-cols-[1fr_20rem]">
       <div className="flex min-w-0 flex-col gap-4">
         <div className="flex flex-wrap items-center justify-between gap-3">
           <VersionPicker models={models} slug={slug} version={version} onChange={(s, v) => router.push(`/models/${s}/versions/${v}/playground`)} />
@@ -210,6 +212,7 @@ export function Playground({
                   unit="pm/nrad"
                   marker={result.peakAt.axis === "x" ? peakNode : null}
                   onHover={setHovered}
+                  size={MAP_SIZE}
                   testId="map-x"
                 />
                 <NodeHeatmap
@@ -221,9 +224,10 @@ export function Playground({
                   unit="pm/nrad"
                   marker={result.peakAt.axis === "y" ? peakNode : null}
                   onHover={setHovered}
+                  size={MAP_SIZE}
                   testId="map-y"
                 />
-                <ColourBar lo={lo} hi={hi} ramp={DIVERGING_RAMP} unit="pm/nrad" />
+                <ColourBar lo={lo} hi={hi} ramp={DIVERGING_RAMP} unit="pm/nrad" height={MAP_SIZE} />
                 <ValidityBlock validity={result.validity} rmsNm={rms} limitNm={validity.maxTotalRmsNm} />
               </>
             ) : (
@@ -281,6 +285,7 @@ export function Playground({
                   values={differenceX}
                   colour={differenceColour}
                   unit="pm/nrad"
+                  size={MAP_SIZE}
                   marker={exact.answer.maxAbsDifferenceAt?.axis === "x" ? worstDifference : null}
                 />
                 <NodeHeatmap
@@ -290,9 +295,10 @@ export function Playground({
                   values={differenceY}
                   colour={differenceColour}
                   unit="pm/nrad"
+                  size={MAP_SIZE}
                   marker={exact.answer.maxAbsDifferenceAt?.axis === "y" ? worstDifference : null}
                 />
-                <ColourBar lo={dLo} hi={dHi} ramp={DIVERGING_RAMP} unit="pm/nrad" />
+                <ColourBar lo={dLo} hi={dHi} ramp={DIVERGING_RAMP} unit="pm/nrad" height={MAP_SIZE} />
               </div>
               <p className="text-sm" data-testid="exact-summary">
                 Largest |surrogate − exact|{" "}
@@ -358,7 +364,7 @@ export function Playground({
 function ValidityBlock({ validity, rmsNm, limitNm }: { validity: { inRange: boolean; warnings: string[] }; rmsNm: number; limitNm: number }) {
   return (
     <div
-      className={`w-56 rounded border px-3 py-2 text-xs ${validity.inRange ? "border-good" : "border-caution"}`}
+      className={`w-52 rounded border px-3 py-2 text-xs ${validity.inRange ? "border-good" : "border-caution"}`}
       data-testid="validity"
       data-in-range={validity.inRange}
     >
@@ -425,8 +431,8 @@ function CoefficientPanel({
           const outside = bound !== undefined && (coefficients[k] < bound.minNm || coefficients[k] > bound.maxNm);
           const { n, m } = nollToOrders(j);
           return (
-            <li key={j} className="grid grid-cols-[4.5rem_1fr_4.5rem] items-center gap-2">
-              <label htmlFor={`z-${j}`} className="text-xs" title={`Noll ${j}: radial order ${n}, azimuthal ${m}${TERM_NAMES[j] ? `, ${TERM_NAMES[j]}` : ""}`}>
+            <li key={j} className="grid grid-cols-[6.5rem_1fr_4rem] items-center gap-2">
+              <label htmlFor={`z-${j}`} className="truncate text-xs" title={`Noll ${j}: radial order ${n}, azimuthal ${m}${TERM_NAMES[j] ? `, ${TERM_NAMES[j]}` : ""}`}>
                 <span className="font-mono font-medium">Z{j}</span> <span className="text-muted">{TERM_NAMES[j] ?? `n${n} m${m}`}</span>
               </label>
               <input
