@@ -104,7 +104,7 @@ describe("registry server actions, with no proxy in front", () => {
     await signInAs(null);
     expect(await cancelRunAction(runId)).toEqual(SIGNED_OUT);
     await signInAs("viewer@velora.test");
-    expect(await cancelRunAction(runId)).toEqual({ ok: false, formError: "This needs the admin role.", fieldErrors: {} });
+    expect(await cancelRunAction(runId)).toEqual({ ok: false, formError: "Only the modeller who queued this run (with the train scope) or an admin may cancel it.", fieldErrors: {} });
     expect(((await db()("runs").where({ id: runId }).first()) as { state: string }).state).toBe("queued");
     await signInAs("modeller@velora.test");
     expect(await cancelRunAction(runId)).toEqual({ ok: true, data: { state: "cancelled" } });
