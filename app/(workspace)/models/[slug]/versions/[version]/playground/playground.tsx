@@ -1,7 +1,7 @@
 "use client";
 
 import { useRouter } from "next/navigation";
-import { useEffect, useMemo, useRef, useState } from "react";
+import { useEffect, useMemo, useRef, useState, type ReactNode } from "react";
 import { quietButtonClass, tdClass, thClass } from "@/components/empty-state";
 import { formatNumber } from "@/components/format";
 import { ColourBar, DIVERGING_RAMP, NodeHeatmap, rampScale, symmetricDomain, type HoveredNode } from "@/components/node-heatmap";
@@ -12,8 +12,8 @@ import type { ValidityRange } from "@/lib/surrogate/validity";
 
 /** How long the sliders must rest before a request goes out, ms (a drag sends a request every few frames). */
 const DEBOUNCE_MS = 25;
-/** Side of each map in px: both maps, the colour bar and the validity block fit one row beside the sliders. */
-const MAP_SIZE = 212;
+/** Side of each map in px: both maps and the colour bar fit one row beside the wavefront panel. */
+const MAP_SIZE = 240;
 
 interface EvaluateAnswer {
   state: string;
@@ -228,7 +228,6 @@ export function Playground({
                   testId="map-y"
                 />
                 <ColourBar lo={lo} hi={hi} ramp={DIVERGING_RAMP} unit="pm/nrad" height={MAP_SIZE} />
-                <ValidityBlock validity={result.validity} rmsNm={rms} limitNm={validity.maxTotalRmsNm} />
               </>
             ) : (
               <p className="text-sm text-muted">{error ? "No maps: the evaluation was refused." : "Evaluating the first map…"}</p>
@@ -356,7 +355,9 @@ export function Playground({
         rmsNm={rms}
         onChange={setTerm}
         onSet={setCoefficients}
-      />
+      >
+        {result && <ValidityBlock validity={result.validity} rmsNm={rms} limitNm={validity.maxTotalRmsNm} />}
+      </CoefficientPanel>
     </div>
   );
 }
@@ -364,7 +365,7 @@ export function Playground({
 function ValidityBlock({ validity, rmsNm, limitNm }: { validity: { inRange: boolean; warnings: string[] }; rmsNm: number; limitNm: number }) {
   return (
     <div
-      className={`w-52 rounded border px-3 py-2 text-xs ${validity.inRange ? "border-good" : "border-caution"}`}
+      className={`rounded border px-3 py-2 text-xs ${validity.inRange ? "border-good" : "border-caution"}`}
       data-testid="validity"
       data-in-range={validity.inRange}
     >
@@ -396,7 +397,9 @@ function CoefficientPanel({
   rmsNm,
   onChange,
   onSet,
+  children,
 }: {
+  children?: ReactNode;
   nollIndices: number[];
   coefficients: number[];
   limitNm: number;
@@ -425,7 +428,8 @@ function CoefficientPanel({
         Total <span className={`font-mono font-medium ${over ? "text-caution" : ""}`}>{formatNumber(rmsNm, 4)}</span> nm RMS
         <span className="text-muted"> (validity limit {formatNumber(validity.maxTotalRmsNm, 3)})</span>
       </p>
-      <ol className="flex max-h-[70vh] flex-col gap-1 overflow-y-auto pr-1">
+      {children}
+      <ol className="flex max-h-[62vh] flex-col gap-1 overflow-y-auto pr-1">
         {nollIndices.map((j, k) => {
           const bound = validity.termBoundsNm.find((b) => b.noll === j);
           const outside = bound !== undefined && (coefficients[k] < bound.minNm || coefficients[k] > bound.maxNm);
