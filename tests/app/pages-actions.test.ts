@@ -142,7 +142,7 @@ describe("registry server actions called directly", () => {
     const runId = await insertRun({ kind: "training", modelId: model.id, spec: {}, total: 10, createdBy: modeller.userId });
     const asViewer = await callAction(viewer, `/runs/${runId}`, id, [runId]);
     expect(asViewer.status).toBe(200);
-    expect(asViewer.text).toContain("This needs the admin role.");
+    expect(asViewer.text).toContain("Only the modeller who queued this run (with the train scope) or an admin may cancel it.");
     await expectSignedOutRefused(id, `/runs/${runId}`, [runId]);
     const run: { state: string } = await db()("runs").where({ id: runId }).first();
     expect(run.state).toBe("queued");
