@@ -31,8 +31,13 @@ export async function run(argv: string[]): Promise<number> {
     process.once("SIGINT", () => stop("SIGINT"));
     process.once("SIGTERM", () => stop("SIGTERM"));
   });
+  // A signal twice stops at once; otherwise the jobs in hand finish (a stopped job would wait for its lock to expire).
+  process.once("SIGTERM", () => process.exit(143));
+  process.once("SIGINT", () => process.exit(130));
   await worker.close();
   await pool.close();
   await closeDb();
-  return 0;
+  process.stderr.write(`[worker ${worker.name}] stopped\n`);
+  // Nothing else is left to wait for; end even if a library keeps a handle open.
+  process.exit(0);
 }

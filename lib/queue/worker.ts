@@ -206,6 +206,7 @@ export function startWorker(options: WorkerOptions): WorkerHandle {
     return written ? "succeeded" : "skipped: the run ended before its version was written";
   }
 
+  const connection = redisConnection("worker");
   const worker = new Worker(
     WORK_QUEUE,
     async (job: Job) => {
@@ -219,7 +220,7 @@ export function startWorker(options: WorkerOptions): WorkerHandle {
       }
     },
     {
-      connection: redisConnection("worker"),
+      connection,
       prefix: queuePrefix(),
       concurrency: options.concurrency,
       lockDuration: lockMs,
@@ -245,6 +246,7 @@ export function startWorker(options: WorkerOptions): WorkerHandle {
     name,
     async close(force = false) {
       await worker.close(force);
+      connection.disconnect();
     },
   };
 }
