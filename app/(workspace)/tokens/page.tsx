@@ -17,7 +17,7 @@ export default async function TokensPage() {
   const [tokens, models] = await Promise.all([listTokens(actor), listModels(actor, {}, { limit: 500, cursor: null })]);
   const scopes = TOKEN_SCOPES.filter((s) => s !== "train" || user.roles.includes("modeller"));
   return (
-    <div className="grid gap-8 lg:grid-cols-[24rem_1fr]">
+    <div className="grid gap-8 xl:grid-cols-[22rem_1fr]">
       <section aria-labelledby="new-token-heading">
         <PageHeading id="new-token-heading" title="New API token" />
         <p className="mb-4 text-sm text-muted">
@@ -37,6 +37,7 @@ export default async function TokensPage() {
             <Link href="/api-reference" className={linkClass}>API reference</Link>.
           </EmptyState>
         ) : (
+          <div className="overflow-x-auto">
           <table className="w-full border-collapse bg-surface text-sm" data-testid="tokens-table">
             <caption className="sr-only">Your API tokens (their secrets are never shown again)</caption>
             <thead>
@@ -65,10 +66,10 @@ export default async function TokensPage() {
                       <td className={`${tdClass} font-mono text-xs`}>{t.hint}</td>
                       <td className={`${tdClass} font-mono text-xs`}>{t.scopes.join(", ")}</td>
                       <td className={`${tdClass} font-mono text-xs`}>{t.models === null ? "every model" : t.models.join(", ")}</td>
-                      <td className={`${tdClass} font-mono text-xs`}>{t.expiresAt === null ? "never" : formatTime(t.expiresAt)}</td>
-                      <td className={`${tdClass} font-mono text-xs`}>{t.lastUsedAt === null ? "never" : formatTime(t.lastUsedAt)}</td>
+                      <td className={`${tdClass} whitespace-nowrap font-mono text-xs`}>{t.expiresAt === null ? "never" : formatTime(t.expiresAt)}</td>
+                      <td className={`${tdClass} whitespace-nowrap font-mono text-xs`}>{t.lastUsedAt === null ? "never" : formatTime(t.lastUsedAt)}</td>
                       <td className={`${tdClass} text-right font-mono text-xs`} data-testid="token-uses">{t.useCount}</td>
-                      <td className={`${tdClass} font-mono text-xs`}>{formatTime(t.createdAt)}</td>
+                      <td className={`${tdClass} whitespace-nowrap font-mono text-xs`}>{formatTime(t.createdAt)}</td>
                       <td className={`${tdClass} text-xs`} data-testid="token-status">
                         {t.revokedAt !== null ? (
                           <span className="text-muted">revoked {formatTime(t.revokedAt)}</span>
@@ -84,6 +85,7 @@ export default async function TokensPage() {
                 })}
             </tbody>
           </table>
+          </div>
         )}
       </section>
     </div>
