@@ -130,9 +130,9 @@ function align(bytes: number): number {
   return (bytes + 63) & ~63;
 }
 
-function decodeBase64(text: string): Uint8Array {
+function decodeBase64(text: string): Uint8Array<ArrayBuffer> {
   const binary = atob(text);
-  const bytes = new Uint8Array(binary.length);
+  const bytes = new Uint8Array(new ArrayBuffer(binary.length));
   for (let i = 0; i < binary.length; i++) bytes[i] = binary.charCodeAt(i);
   return bytes;
 }
