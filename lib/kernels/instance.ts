@@ -138,12 +138,24 @@ function decodeBase64(text: string): Uint8Array<ArrayBuffer> {
 }
 
 let instance: KernelInstance | null | undefined;
+let enabled = true;
+
+/**
+ * Turn the kernels off (or on again) in this thread, so that every caller runs its TypeScript reference: for
+ * benchmarks and tests that put the two side by side. Returns the previous setting.
+ */
+export function setKernelsEnabled(on: boolean): boolean {
+  const previous = enabled;
+  enabled = on;
+  return previous;
+}
 
 /**
  * The kernel module of this thread, instantiated on first use (synchronously: the module is about 10 KB), or
  * null where WebAssembly with 128-bit SIMD is not available; callers then run the TypeScript reference.
  */
 export function kernelInstance(): KernelInstance | null {
+  if (!enabled) return null;
   if (instance === undefined) {
     instance = null;
     if (typeof WebAssembly === "object") {

@@ -16,12 +16,12 @@ export const MODE_ADD: i32 = 1;
 export const MODE_SUBTRACT: i32 = 2;
 
 const KC_F32: i32 = 512;
-const KC_F64: i32 = 256;
+const KC_F64: i32 = 512;
 const MC: i32 = 64;
 
 /** Bytes of scratch that gemmF32 / gemmF64 need at `work`. */
 export function gemmWorkBytes(): i32 {
-  return MC * KC_F32 * 4 + 4096;
+  return MC * KC_F64 * 8 + 4096;
 }
 
 @inline function minI(a: i32, b: i32): i32 {
@@ -34,30 +34,33 @@ export function gemmWorkBytes(): i32 {
 /** Pack rows [i0, i0 + mc) x inner [p0, p0 + kc) of A into `dst`: blocks of 4 rows, [block][p][4], zero padded. */
 function packAF32(a: usize, lda: i32, transA: i32, i0: i32, mc: i32, p0: i32, kc: i32, dst: usize): void {
   const blocks = (mc + 3) >> 2;
+  if (transA) {
+    // Row p of the source holds rows i0 .. i0 + mc of A side by side: read it once, left to right.
+    const full = mc >> 2;
+    const blockBytes = <usize>(kc * 16);
+    for (let p = 0; p < kc; p++) {
+      const src = a + <usize>(((p0 + p) * lda + i0) * 4);
+      let d = dst + <usize>(p * 16);
+      for (let rb = 0; rb < full; rb++, d += blockBytes) v128.store(d, v128.load(src + <usize>(rb * 16)));
+      if (full < blocks) {
+        for (let r = 0; r < 4; r++) {
+          const row = full * 4 + r;
+          store<f32>(d + <usize>(r * 4), row < mc ? load<f32>(src + <usize>(row * 4)) : 0);
+        }
+      }
+    }
+    return;
+  }
   for (let rb = 0; rb < blocks; rb++) {
     const height = minI(4, mc - rb * 4);
     const base = dst + <usize>(rb * kc * 16);
     const row0 = i0 + rb * 4;
-    if (transA) {
-      if (height == 4) {
-        for (let p = 0; p < kc; p++) {
-          v128.store(base + <usize>(p * 16), v128.load(a + <usize>(((p0 + p) * lda + row0) * 4)));
-        }
+    for (let r = 0; r < 4; r++) {
+      if (r < height) {
+        const src = a + <usize>(((row0 + r) * lda + p0) * 4);
+        for (let p = 0; p < kc; p++) store<f32>(base + <usize>(p * 16 + r * 4), load<f32>(src + <usize>(p * 4)));
       } else {
-        for (let p = 0; p < kc; p++) {
-          const src = a + <usize>(((p0 + p) * lda + row0) * 4);
-          const d = base + <usize>(p * 16);
-          for (let r = 0; r < 4; r++) store<f32>(d + <usize>(r * 4), r < height ? load<f32>(src + <usize>(r * 4)) : 0);
-        }
-      }
-    } else {
-      for (let r = 0; r < 4; r++) {
-        if (r < height) {
-          const src = a + <usize>(((row0 + r) * lda + p0) * 4);
-          for (let p = 0; p < kc; p++) store<f32>(base + <usize>(p * 16 + r * 4), load<f32>(src + <usize>(p * 4)));
-        } else {
-          for (let p = 0; p < kc; p++) store<f32>(base + <usize>(p * 16 + r * 4), 0);
-        }
+        for (let p = 0; p < kc; p++) store<f32>(base + <usize>(p * 16 + r * 4), 0);
       }
     }
   }
@@ -242,33 +245,36 @@ export function packPanelsF32(src: usize, ld: i32, transSrc: i32, k: i32, n: i32
 /** As packAF32 for float64: blocks of 4 rows, [block][p][4]. */
 function packAF64(a: usize, lda: i32, transA: i32, i0: i32, mc: i32, p0: i32, kc: i32, dst: usize): void {
   const blocks = (mc + 3) >> 2;
+  if (transA) {
+    const full = mc >> 2;
+    const blockBytes = <usize>(kc * 32);
+    for (let p = 0; p < kc; p++) {
+      const src = a + <usize>(((p0 + p) * lda + i0) * 8);
+      let d = dst + <usize>(p * 32);
+      for (let rb = 0; rb < full; rb++, d += blockBytes) {
+        const s = src + <usize>(rb * 32);
+        v128.store(d, v128.load(s));
+        v128.store(d, v128.load(s, 16), 16);
+      }
+      if (full < blocks) {
+        for (let r = 0; r < 4; r++) {
+          const row = full * 4 + r;
+          store<f64>(d + <usize>(r * 8), row < mc ? load<f64>(src + <usize>(row * 8)) : 0);
+        }
+      }
+    }
+    return;
+  }
   for (let rb = 0; rb < blocks; rb++) {
     const height = minI(4, mc - rb * 4);
     const base = dst + <usize>(rb * kc * 32);
     const row0 = i0 + rb * 4;
-    if (transA) {
-      if (height == 4) {
-        for (let p = 0; p < kc; p++) {
-          const src = a + <usize>(((p0 + p) * lda + row0) * 8);
-          const d = base + <usize>(p * 32);
-          v128.store(d, v128.load(src));
-          v128.store(d, v128.load(src, 16), 16);
-        }
+    for (let r = 0; r < 4; r++) {
+      if (r < height) {
+        const src = a + <usize>(((row0 + r) * lda + p0) * 8);
+        for (let p = 0; p < kc; p++) store<f64>(base + <usize>(p * 32 + r * 8), load<f64>(src + <usize>(p * 8)));
       } else {
-        for (let p = 0; p < kc; p++) {
-          const src = a + <usize>(((p0 + p) * lda + row0) * 8);
-          const d = base + <usize>(p * 32);
-          for (let r = 0; r < 4; r++) store<f64>(d + <usize>(r * 8), r < height ? load<f64>(src + <usize>(r * 8)) : 0);
-        }
-      }
-    } else {
-      for (let r = 0; r < 4; r++) {
-        if (r < height) {
-          const src = a + <usize>(((row0 + r) * lda + p0) * 8);
-          for (let p = 0; p < kc; p++) store<f64>(base + <usize>(p * 32 + r * 8), load<f64>(src + <usize>(p * 8)));
-        } else {
-          for (let p = 0; p < kc; p++) store<f64>(base + <usize>(p * 32 + r * 8), 0);
-        }
+        for (let p = 0; p < kc; p++) store<f64>(base + <usize>(p * 32 + r * 8), 0);
       }
     }
   }

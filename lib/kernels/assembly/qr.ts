@@ -7,7 +7,12 @@
 // The factors are column-major `rows x cols` (R on and above the diagonal, reflectors below), as in LAPACK.
 import { gemmF64, gemmWorkBytes, MODE_SET, MODE_SUBTRACT, packPanelsF64 } from "./product";
 
+/** Reflectors per panel of the factorisation. */
 const BLOCK: i32 = 32;
+/** Reflectors per block when applying Q^T to many right-hand sides (longer inner products, fewer passes over B). */
+const APPLY_BLOCK: i32 = 32;
+/** The larger of the two: scratch is sized for it. */
+const WIDEST: i32 = APPLY_BLOCK > BLOCK ? APPLY_BLOCK : BLOCK;
 const SOLVE_BLOCK: i32 = 64;
 
 @inline function minI(a: i32, b: i32): i32 {
@@ -31,8 +36,9 @@ export function qrWorkBytes(rows: i32, cols: i32, rhsCount: i32): i32 {
   const wide = cols > rhsCount ? cols : rhsCount;
   const panelsRhs = (rhsCount + 3) >> 2;
   return (
-    align(BLOCK * rows * 8) + align(BLOCK * BLOCK * 8) + align(BLOCK * rows * 8) + align((rows + 4) * BLOCK * 8) +
-    align(wide * BLOCK * 8) + align((wide + 4) * BLOCK * 8) + align(panelsRhs * 4 * cols * 8) + gemmWorkBytes()
+    align(WIDEST * rows * 8) + align(WIDEST * WIDEST * 8) + align(WIDEST * rows * 8) + align((rows + 4) * WIDEST * 8) +
+    align(wide * WIDEST * 8) + align((wide + 4) * WIDEST * 8) + align(wide * WIDEST * 8) + align(WIDEST * WIDEST * 8) +
+    align(panelsRhs * 4 * cols * 8) + gemmWorkBytes()
   );
 }
 
@@ -119,16 +125,10 @@ function compactWy(a: usize, rows: i32, tau: usize, k0: i32, kb: i32, vt: usize,
   }
 }
 
-/** W (rows x kb, row-major) <- W T with T upper triangular, right to left within each row. */
-function multiplyByT(w: usize, count: i32, kb: i32, t: usize): void {
-  for (let r = 0; r < count; r++) {
-    const row = w + <usize>(r * kb * 8);
-    for (let j = kb - 1; j >= 0; j--) {
-      let s: f64 = 0;
-      for (let l = 0; l <= j; l++) s += load<f64>(row + <usize>(l * 8)) * load<f64>(t + <usize>((l * kb + j) * 8));
-      store<f64>(row + <usize>(j * 8), s);
-    }
-  }
+/** W2 (count x kb) = W T with T upper triangular (kb x kb): one product with T packed (its zeros included). */
+function multiplyByT(w: usize, count: i32, kb: i32, t: usize, w2: usize): void {
+  packPanelsF64(t, kb, 0, kb, kb, tPackedPtr, kb * 4);
+  gemmF64(count, kb, kb, w, kb, 0, tPackedPtr, kb * 4, w2, kb, MODE_SET, gemmPtr);
 }
 
 // Scratch partition (module globals: no allocator is linked, and the module runs one call at a time).
@@ -138,6 +138,8 @@ let vPackedPtr: usize = 0;
 let vtPackedPtr: usize = 0;
 let wPtr: usize = 0;
 let wPackedPtr: usize = 0;
+let w2Ptr: usize = 0;
+let tPackedPtr: usize = 0;
 let xPackedPtr: usize = 0;
 let gemmPtr: usize = 0;
 
@@ -145,12 +147,14 @@ function partition(work: usize, rows: i32, cols: i32, rhsCount: i32): void {
   const wide = cols > rhsCount ? cols : rhsCount;
   const panelsRhs = (rhsCount + 3) >> 2;
   let p = work;
-  vtPtr = p; p += <usize>align(BLOCK * rows * 8);
-  tPtr = p; p += <usize>align(BLOCK * BLOCK * 8);
-  vPackedPtr = p; p += <usize>align(BLOCK * rows * 8);
-  vtPackedPtr = p; p += <usize>align((rows + 4) * BLOCK * 8);
-  wPtr = p; p += <usize>align(wide * BLOCK * 8);
-  wPackedPtr = p; p += <usize>align((wide + 4) * BLOCK * 8);
+  vtPtr = p; p += <usize>align(WIDEST * rows * 8);
+  tPtr = p; p += <usize>align(WIDEST * WIDEST * 8);
+  vPackedPtr = p; p += <usize>align(WIDEST * rows * 8);
+  vtPackedPtr = p; p += <usize>align((rows + 4) * WIDEST * 8);
+  wPtr = p; p += <usize>align(wide * WIDEST * 8);
+  wPackedPtr = p; p += <usize>align((wide + 4) * WIDEST * 8);
+  w2Ptr = p; p += <usize>align(wide * WIDEST * 8);
+  tPackedPtr = p; p += <usize>align(WIDEST * WIDEST * 8);
   xPackedPtr = p; p += <usize>align(panelsRhs * 4 * cols * 8);
   gemmPtr = p;
 }
@@ -170,9 +174,9 @@ export function qrFactor(a: usize, rows: i32, cols: i32, tau: usize, work: usize
     const at = a + <usize>((first * rows + k0) * 8);
     packPanelsF64(vtPtr, m, 1, m, kb, vPackedPtr, m * 4);
     gemmF64(n, kb, m, at, rows, 0, vPackedPtr, m * 4, wPtr, kb, MODE_SET, gemmPtr);
-    multiplyByT(wPtr, n, kb, tPtr);
+    multiplyByT(wPtr, n, kb, tPtr, w2Ptr);
     packPanelsF64(vtPtr, m, 0, kb, m, vtPackedPtr, kb * 4);
-    gemmF64(n, m, kb, wPtr, kb, 0, vtPackedPtr, kb * 4, at, rows, MODE_SUBTRACT, gemmPtr);
+    gemmF64(n, m, kb, w2Ptr, kb, 0, vtPackedPtr, kb * 4, at, rows, MODE_SUBTRACT, gemmPtr);
   }
 }
 
@@ -180,17 +184,17 @@ export function qrFactor(a: usize, rows: i32, cols: i32, tau: usize, work: usize
 export function applyQTranspose(a: usize, rows: i32, cols: i32, tau: usize, rhs: usize, rhsCount: i32, work: usize): void {
   if (rhsCount <= 0) return;
   partition(work, rows, cols, rhsCount);
-  for (let k0 = 0; k0 < cols; k0 += BLOCK) {
-    const kb = minI(BLOCK, cols - k0);
+  for (let k0 = 0; k0 < cols; k0 += APPLY_BLOCK) {
+    const kb = minI(APPLY_BLOCK, cols - k0);
     const m = rows - k0;
     compactWy(a, rows, tau, k0, kb, vtPtr, tPtr);
     const sub = rhs + <usize>(k0 * rhsCount * 8);
     // W^T (rhsCount x kb) = B_sub^T V, read B_sub as a transposed left operand; then W^T <- W^T T.
     packPanelsF64(vtPtr, m, 1, m, kb, vPackedPtr, m * 4);
     gemmF64(rhsCount, kb, m, sub, rhsCount, 1, vPackedPtr, m * 4, wPtr, kb, MODE_SET, gemmPtr);
-    multiplyByT(wPtr, rhsCount, kb, tPtr);
+    multiplyByT(wPtr, rhsCount, kb, tPtr, w2Ptr);
     // B_sub -= V W with V read from V^T (transposed left operand) and W packed from W^T.
-    packPanelsF64(wPtr, kb, 1, kb, rhsCount, wPackedPtr, kb * 4);
+    packPanelsF64(w2Ptr, kb, 1, kb, rhsCount, wPackedPtr, kb * 4);
     gemmF64(m, rhsCount, kb, vtPtr, m, 1, wPackedPtr, kb * 4, sub, rhsCount, MODE_SUBTRACT, gemmPtr);
   }
 }
