@@ -66,7 +66,7 @@ if (!isMainThread) {
     const count = Math.max(0, Math.min(perThread, total - first));
     workers.push(
       new Promise((resolve, reject) => {
-        const worker = new Worker(new URL(import.meta.url), { workerData: { path, first, count, budgetNm } satisfies Share });
+        const worker = new Worker(new URL("./monte_carlo_worker.mjs", import.meta.url), { workerData: { path, first, count, budgetNm } satisfies Share });
         worker.once("message", resolve);
         worker.once("error", reject);
       }),
