@@ -13,6 +13,8 @@ export interface KernelExports {
   gemvF64(k: number, n: number, f: number, b: number, bPanelStride: number, out: number): void;
   packPanelsF32(src: number, ld: number, transSrc: number, k: number, n: number, dst: number, panelStride: number): void;
   packPanelsF64(src: number, ld: number, transSrc: number, k: number, n: number, dst: number, panelStride: number): void;
+  rowMaxAbsF32(c: number, rows: number, cols: number, ldc: number, out: number): void;
+  rowMaxAbsF64(c: number, rows: number, cols: number, ldc: number, out: number): void;
   qrWorkBytes(rows: number, cols: number, rhsCount: number): number;
   qrFactor(a: number, rows: number, cols: number, tau: number, work: number): void;
   applyQTranspose(a: number, rows: number, cols: number, tau: number, rhs: number, rhsCount: number, work: number): void;

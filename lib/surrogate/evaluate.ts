@@ -262,48 +262,99 @@ export function evaluateBatchInto(
   if (out.length !== samples * P) throw new RangeError("out must have S x 2 M^2 entries");
   const end = rowEnd ?? samples;
   if (end <= rowStart) return;
+  runBatch(model, coefficientsNm, rowStart, end, out, null);
+}
+
+/**
+ * Peak |TTL| of each of many wavefronts without keeping their maps: `peaks[s] = max_p |c_p(a_s)|` over both axes
+ * and all nodes (pm/nrad), for rows `[rowStart, rowEnd)`; the same numbers as the largest `|value|` of each row of
+ * {@link evaluateBatchInto} (computed from the same sums, bit for bit), with the maps never leaving the kernel
+ * module. For Monte Carlo runs that need only each wavefront's peak.
+ *
+ * @param coefficientsNm row-major `S x J`, model Noll order, nm RMS
+ * @param peaks length S, pm/nrad
+ * @throws {RangeError} from {@link checkCoefficients}; "peaks must have S entries"; from {@link checkFinite}
+ */
+export function evaluateBatchPeaksInto(
+  model: SurrogateModel,
+  coefficientsNm: ArrayLike<number>,
+  peaks: Float64Array,
+  rowStart = 0,
+  rowEnd?: number,
+): void {
+  const samples = checkCoefficients(model, coefficientsNm, true);
+  if (peaks.length !== samples) throw new RangeError("peaks must have S entries");
+  const end = rowEnd ?? samples;
+  if (end <= rowStart) return;
+  runBatch(model, coefficientsNm, rowStart, end, null, peaks);
+  checkFinite(peaks.subarray(rowStart, end));
+}
+
+/** The chunked batch product behind {@link evaluateBatchInto} (maps) and {@link evaluateBatchPeaksInto} (peaks). */
+function runBatch(
+  model: SurrogateModel,
+  coefficientsNm: ArrayLike<number>,
+  rowStart: number,
+  end: number,
+  maps: Float64Array | null,
+  peaks: Float64Array | null,
+): void {
   const entry = prepare(model);
   const { terms } = entry;
   const J = model.nollIndices.length;
-  const kernels = kernelInstance();
-  if (!kernels) {
-    const slice = Array.prototype.slice.call(coefficientsNm, rowStart * J, end * J) as number[];
-    const features = featureMatrix(terms, slice, J);
-    multiplyPackedIntoReference(features, end - rowStart, packedCoefficients(model), out.subarray(rowStart * P, end * P));
-    return;
-  }
+  const P = 2 * model.pointsPerAxis * model.pointsPerAxis;
   const T = terms.count;
-  const single = entry.storedAsFloat32;
-  const size = single ? 4 : 8;
-  const width = single ? F32_PANEL : F64_PANEL;
+  const kernels = kernelInstance();
   const chunk = Math.min(BATCH_CHUNK, end - rowStart);
   const features = new Float64Array(chunk * T);
   const row = new Float64Array(J);
-  const b = residentCoefficients(kernels, model, entry);
-  const fp = kernels.scratch(chunk * T * size);
-  const cp = kernels.scratch(chunk * P * size);
-  const work = kernels.scratch(kernels.exports.gemmWorkBytes());
+  // Maps of one chunk when they are computed in TypeScript for the peaks only.
+  let scratchMaps: Float64Array | null = null;
+  const reference = (rows: number, s0: number) => {
+    const target = maps ? maps.subarray(s0 * P, (s0 + rows) * P) : (scratchMaps ??= new Float64Array(chunk * P)).subarray(0, rows * P);
+    multiplyPackedIntoReference(features.subarray(0, rows * T), rows, packedCoefficients(model), target);
+    if (peaks) {
+      for (let s = 0; s < rows; s++) {
+        let peak = 0;
+        for (let p = s * P; p < (s + 1) * P; p++) {
+          const v = Math.abs(target[p]);
+          if (!(v <= peak)) peak = v; // NaN propagates, as in the kernel
+        }
+        peaks[s0 + s] = peak;
+      }
+    }
+  };
+  const single = entry.storedAsFloat32;
+  const size = single ? 4 : 8;
+  const width = single ? F32_PANEL : F64_PANEL;
+  let b = 0, fp = 0, cp = 0, pp = 0, work = 0;
+  if (kernels) {
+    b = residentCoefficients(kernels, model, entry);
+    fp = kernels.scratch(chunk * T * size);
+    cp = kernels.scratch(chunk * P * size);
+    pp = kernels.scratch(chunk * size);
+    work = kernels.scratch(kernels.exports.gemmWorkBytes());
+  }
   for (let s0 = rowStart; s0 < end; s0 += chunk) {
     const rows = Math.min(chunk, end - s0);
     for (let s = 0; s < rows; s++) {
       for (let k = 0; k < J; k++) row[k] = coefficientsNm[(s0 + s) * J + k];
       featuresInto(terms, row, features, s * T);
     }
-    const target = out.subarray(s0 * P, (s0 + rows) * P);
-    if (!inFloat32Range(features, 0, rows * T, entry)) {
-      multiplyPackedIntoReference(features.subarray(0, rows * T), rows, packedCoefficients(model), target);
+    if (!kernels || !inFloat32Range(features, 0, rows * T, entry)) {
+      reference(rows, s0);
       continue;
     }
-    if (single) {
-      const heap = kernels.f32;
-      heap.set(features.subarray(0, rows * T), fp >> 2);
-      kernels.exports.gemmF32(rows, P, T, fp, T, 0, b, T * width, cp, P, MODE_SET, work);
-      target.set(heap.subarray(cp >> 2, (cp >> 2) + rows * P));
-    } else {
-      const heap = kernels.f64;
-      heap.set(features.subarray(0, rows * T), fp >> 3);
-      kernels.exports.gemmF64(rows, P, T, fp, T, 0, b, T * width, cp, P, MODE_SET, work);
-      target.set(heap.subarray(cp >> 3, (cp >> 3) + rows * P));
+    const heap = single ? kernels.f32 : kernels.f64;
+    const shift = single ? 2 : 3;
+    heap.set(features.subarray(0, rows * T), fp >> shift);
+    if (single) kernels.exports.gemmF32(rows, P, T, fp, T, 0, b, T * width, cp, P, MODE_SET, work);
+    else kernels.exports.gemmF64(rows, P, T, fp, T, 0, b, T * width, cp, P, MODE_SET, work);
+    if (maps) maps.subarray(s0 * P, (s0 + rows) * P).set(heap.subarray(cp >> shift, (cp >> shift) + rows * P));
+    if (peaks) {
+      if (single) kernels.exports.rowMaxAbsF32(cp, rows, P, P, pp);
+      else kernels.exports.rowMaxAbsF64(cp, rows, P, P, pp);
+      peaks.set(heap.subarray(pp >> shift, (pp >> shift) + rows), s0);
     }
   }
 }

@@ -1,6 +1,7 @@
 import { describe, expect, it } from "vitest";
 import { setKernelsEnabled } from "../../lib/kernels/instance.ts";
 import { BatchEvaluator } from "../../lib/surrogate/batchThreads.ts";
+import { evaluateBatchPeaksInto } from "../../lib/surrogate/evaluate.ts";
 import {
   compileTerms, evaluateBatch, evaluateBatchInto, evaluateInto, evaluateMap, featureMatrix, randomDesign, roundToStored,
   secondOrderTerms,
@@ -121,5 +122,35 @@ describe("surrogate evaluation through the kernels", () => {
     } finally {
       await evaluator.close();
     }
+  });
+
+  it("gives each wavefront's peak |TTL| without its maps, the same numbers as the largest |value| of each map", () => {
+    // Definition: peak = max over both axes and all nodes of |c|; the peaks come from the same sums as the maps.
+    for (const model of [storedModel, float64Model]) {
+      for (const S of [1, 6, 300]) {
+        const wavefronts = randomDesign(J, { size: S, maxRmsNm: 30, seed: 70 + S });
+        const maps = evaluateBatch(model, wavefronts);
+        const expected = Array.from({ length: S }, (_, s) => Math.max(...Array.from(maps.subarray(s * P, (s + 1) * P), Math.abs)));
+        // Without the kernels the TypeScript reference sums term by term in order, exactly as direct() does.
+        const { value } = direct(model, wavefronts);
+        const expectedReference = Array.from({ length: S }, (_, s) => Math.max(...Array.from(value.subarray(s * P, (s + 1) * P), Math.abs)));
+        for (const kernels of [true, false]) {
+          const previous = setKernelsEnabled(kernels);
+          const peaks = new Float64Array(S).fill(-1);
+          evaluateBatchPeaksInto(model, wavefronts, peaks);
+          setKernelsEnabled(previous);
+          expect(Array.from(peaks)).toEqual(kernels ? expected : expectedReference);
+        }
+      }
+    }
+    const peaks = new Float64Array(3).fill(-1);
+    evaluateBatchPeaksInto(storedModel, randomDesign(J, { size: 3, maxRmsNm: 30, seed: 1 }), peaks, 1, 2);
+    expect(peaks[0]).toBe(-1);
+    expect(peaks[1]).toBeGreaterThan(0);
+    expect(peaks[2]).toBe(-1);
+    expect(() => evaluateBatchPeaksInto(storedModel, new Float64Array(2 * J), new Float64Array(3))).toThrow(new RangeError("peaks must have S entries"));
+    expect(() => evaluateBatchPeaksInto(storedModel, [0, 0, 0, 0, 0, 1e200], new Float64Array(1))).toThrow(
+      new RangeError("wavefront coefficients are too large: the surrogate TTL is not finite"),
+    );
   });
 });

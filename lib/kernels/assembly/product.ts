@@ -455,3 +455,40 @@ export function packPanelsF64(src: usize, ld: i32, transSrc: i32, k: i32, n: i32
     }
   }
 }
+
+// ---------------------------------------------------------------------------------------------------------------
+// reductions
+
+/** out[i] = max_j |c[i][j]| for a row-major float32 `rows x cols` matrix (leading dimension ldc); out is float32. */
+export function rowMaxAbsF32(c: usize, rows: i32, cols: i32, ldc: i32, out: usize): void {
+  for (let i = 0; i < rows; i++) {
+    const row = c + <usize>(i * ldc * 4);
+    let m0 = f32x4.splat(0), m1 = f32x4.splat(0);
+    let j = 0;
+    for (; j + 8 <= cols; j += 8) {
+      m0 = f32x4.max(m0, f32x4.abs(v128.load(row + <usize>(j * 4))));
+      m1 = f32x4.max(m1, f32x4.abs(v128.load(row + <usize>(j * 4), 16)));
+    }
+    m0 = f32x4.max(m0, m1);
+    let m = max(max(f32x4.extract_lane(m0, 0), f32x4.extract_lane(m0, 1)), max(f32x4.extract_lane(m0, 2), f32x4.extract_lane(m0, 3)));
+    for (; j < cols; j++) m = max(m, abs(load<f32>(row + <usize>(j * 4))));
+    store<f32>(out + <usize>(i * 4), m);
+  }
+}
+
+/** out[i] = max_j |c[i][j]| for a row-major float64 matrix; out is float64. */
+export function rowMaxAbsF64(c: usize, rows: i32, cols: i32, ldc: i32, out: usize): void {
+  for (let i = 0; i < rows; i++) {
+    const row = c + <usize>(i * ldc * 8);
+    let m0 = f64x2.splat(0), m1 = f64x2.splat(0);
+    let j = 0;
+    for (; j + 4 <= cols; j += 4) {
+      m0 = f64x2.max(m0, f64x2.abs(v128.load(row + <usize>(j * 8))));
+      m1 = f64x2.max(m1, f64x2.abs(v128.load(row + <usize>(j * 8), 16)));
+    }
+    m0 = f64x2.max(m0, m1);
+    let m = max(f64x2.extract_lane(m0, 0), f64x2.extract_lane(m0, 1));
+    for (; j < cols; j++) m = max(m, abs(load<f64>(row + <usize>(j * 8))));
+    store<f64>(out + <usize>(i * 8), m);
+  }
+}
