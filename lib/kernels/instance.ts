@@ -19,6 +19,7 @@ export interface KernelExports {
   qrFactor(a: number, rows: number, cols: number, tau: number, work: number): void;
   applyQTranspose(a: number, rows: number, cols: number, tau: number, rhs: number, rhsCount: number, work: number): void;
   solveUpper(a: number, rows: number, cols: number, x: number, rhsCount: number, work: number): void;
+  dominantEigenvalue(rr: number, n: number, inverse: number, maxIterations: number, work: number): number;
   foldedSums(halfNodes: number, pairs: number, count: number, kernels: number,
     pRe: number, pIm: number, qRe: number, qIm: number, moment: number, out: number): void;
 }

@@ -2,6 +2,7 @@
 export * from "./product";
 export * from "./qr";
 export * from "./fourier";
+export * from "./condition";
 
 /** First byte of linear memory free for the caller (above the module's own static data), 64-byte aligned. */
 export function heapBase(): usize {
