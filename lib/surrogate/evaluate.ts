@@ -360,7 +360,7 @@ function runBatch(
 }
 
 /** Wavefronts per kernel call of {@link evaluateBatchInto} (features and results of a chunk stay in cache). */
-const BATCH_CHUNK = 256;
+const BATCH_CHUNK = 1024;
 
 /** {@link evaluateBatchInto} over all rows, returning a new `S x 2 M^2` array. */
 export function evaluateBatch(model: SurrogateModel, coefficientsNm: ArrayLike<number>): Float64Array {
