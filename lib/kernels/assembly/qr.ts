@@ -10,7 +10,7 @@ import { gemmF64, gemmWorkBytes, MODE_SET, MODE_SUBTRACT, packPanelsF64 } from "
 /** Reflectors per panel of the factorisation. */
 const BLOCK: i32 = 32;
 /** Reflectors per block when applying Q^T to many right-hand sides (longer inner products, fewer passes over B). */
-const APPLY_BLOCK: i32 = 32;
+const APPLY_BLOCK: i32 = 64;
 /** The larger of the two: scratch is sized for it. */
 const WIDEST: i32 = APPLY_BLOCK > BLOCK ? APPLY_BLOCK : BLOCK;
 const SOLVE_BLOCK: i32 = 64;
