@@ -71,6 +71,8 @@ const timings = JSON.parse(evalRun.stdout.trim().split("\n").at(-1)!) as {
 };
 // NumPy right after, so that both see the machine in about the same state.
 const numpy = runNumpyScript("surrogate_numpy.py", [String(model.terms.length), String(pruned.terms.length)]);
+// The same on one OpenBLAS thread: a per-core comparison, and one that a busy second core does not distort.
+const numpyOneThread = runNumpyScript("surrogate_numpy.py", [String(model.terms.length), String(pruned.terms.length)], { OPENBLAS_NUM_THREADS: "1" });
 // The best round is the figure compared with the targets (the least disturbed by other work on the machine,
 // as timeit recommends); the median is printed beside it.
 const fullMs = timings.fullMs.best;
@@ -123,6 +125,10 @@ if (numpy.result) {
   console.log(`  kernels beside NumPy ${n.numpyVersion ?? ""} (OpenBLAS, its own threads), same run:`);
   for (const [label, ours, theirs, ratio, target] of rows) {
     console.log(`    ${label.padEnd(44)} ours ${ours.padStart(14)}  NumPy ${theirs.padStart(14)}  ratio ${fmt(ratio, 2).padStart(6)} x  target <= ${target} x: ${mark(ratio <= target)}`);
+  }
+  const one = numpyOneThread.result;
+  if (one) {
+    console.log(`    beside NumPy on one OpenBLAS thread: fit ${fmt(one.fitMs, 0)} ms (ratio ${fmt(timings.fitMs / one.fitMs, 2)} x, kernels alone ${fmt(timings.leastSquaresMs / one.fitMs, 2)} x), one full map ${fmt(one.evalMs, 4)} ms (${fmt(fullMs / one.evalMs, 2)} x), batched ${fmt(one.batchMapsPerSecond, 0)} maps/s (ours on 1 thread: ${fmt(one.batchMapsPerSecond / oneThreadRate, 2)} x)`);
   }
 } else {
   console.log(`  NumPy comparison skipped: ${numpy.reason}`);
