@@ -3,7 +3,7 @@ import { packColumns, type PackedColumns } from "../linalg/index.ts";
 import { multiplyPackedIntoReference } from "../linalg/matrixProduct.ts";
 import { interpolateMap } from "./interpolate.ts";
 import type { SurrogateModel } from "./model.ts";
-import { compileTerms, featureMatrix, featuresInto, type CompiledTerms } from "./terms.ts";
+import { compileTerms, featuresInto, type CompiledTerms } from "./terms.ts";
 import { validityWarnings } from "./validity.ts";
 
 interface Prepared {
