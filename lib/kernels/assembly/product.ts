@@ -81,16 +81,18 @@ function microF32(kc: i32, ap: usize, bp: usize, c: usize, ldc: i32, height: i32
   for (let p = 0; p < kc; p++) {
     const b0 = v128.load(bp);
     const b1 = v128.load(bp, 16);
-    let a = v128.load32_splat(ap);
+    // The four rows' values in one load, each broadcast by a lane shuffle (fewer loads than four splats).
+    const a4 = v128.load(ap);
+    let a = v128.shuffle<f32>(a4, a4, 0, 0, 0, 0);
     c00 = f32x4.add(c00, f32x4.mul(a, b0));
     c01 = f32x4.add(c01, f32x4.mul(a, b1));
-    a = v128.load32_splat(ap, 4);
+    a = v128.shuffle<f32>(a4, a4, 1, 1, 1, 1);
     c10 = f32x4.add(c10, f32x4.mul(a, b0));
     c11 = f32x4.add(c11, f32x4.mul(a, b1));
-    a = v128.load32_splat(ap, 8);
+    a = v128.shuffle<f32>(a4, a4, 2, 2, 2, 2);
     c20 = f32x4.add(c20, f32x4.mul(a, b0));
     c21 = f32x4.add(c21, f32x4.mul(a, b1));
-    a = v128.load32_splat(ap, 12);
+    a = v128.shuffle<f32>(a4, a4, 3, 3, 3, 3);
     c30 = f32x4.add(c30, f32x4.mul(a, b0));
     c31 = f32x4.add(c31, f32x4.mul(a, b1));
     ap += 16;
