@@ -1,11 +1,11 @@
 import { getToken } from "next-auth/jwt";
 import { NextResponse, type NextRequest } from "next/server";
-import { getConfig } from "@/lib/config";
+import { requireAuthSecret } from "@/lib/config";
 
 // Only redirects signed-out visitors to the sign-in page; every permission is checked on the server
 // by the pages, route handlers and server actions themselves.
 export async function proxy(request: NextRequest) {
-  const token = await getToken({ req: request, secret: getConfig().authSecret });
+  const token = await getToken({ req: request, secret: requireAuthSecret() });
   if (token) return NextResponse.next();
   const signIn = new URL("/sign-in", request.url);
   signIn.searchParams.set("callbackUrl", request.nextUrl.pathname + request.nextUrl.search);

@@ -36,10 +36,8 @@ const phaseEnd = new Map<TrainingPhase, number>();
 let start = performance.now();
 const trained = await trainSurrogate(
   { ...SPEC, softwareVersion: "bench", createdAt: new Date().toISOString() },
-  async (noll, coefficientsNm, onProgress) => {
-    const maps = await propagateMany(SETUP, noll, coefficientsNm, { onProgress });
-    return { x: maps.x, y: maps.y };
-  },
+  (noll, coefficientsNm, onProgress) =>
+    propagateMany(SETUP, noll, coefficientsNm, { onProgress }),
   (phase, done, total) => {
     if (!phaseStart.has(phase)) phaseStart.set(phase, performance.now());
     if (done === total) phaseEnd.set(phase, performance.now());

@@ -5,9 +5,9 @@
 import { readFileSync } from "node:fs";
 import { availableParallelism } from "node:os";
 import { setKernelsEnabled } from "../lib/kernels/instance.ts";
-import { BatchEvaluator } from "../lib/surrogate/batchThreads.ts";
-import { fitCoefficients } from "../lib/surrogate/fit.ts";
 import { applyQTransposeInPlace, householderQr, solveUpperTriangular } from "../lib/linalg/index.ts";
+import { createComputePool } from "../lib/parallel/index.ts";
+import { fitCoefficients } from "../lib/surrogate/fit.ts";
 import { compileTerms, decodeModel, evaluateBatch, evaluateInto, featureMatrix, randomDesign } from "../lib/surrogate/index.ts";
 
 const [fullPath, prunedPath] = process.argv.slice(2);
@@ -55,15 +55,15 @@ const REFERENCE_BATCH = 1000;
 const referenceBest = bestMs(2, () => evaluateBatch(full, many.subarray(0, REFERENCE_BATCH * J)));
 setKernelsEnabled(true);
 const threads = availableParallelism();
-const evaluator = new BatchEvaluator(full, threads);
-await evaluator.evaluate(many.subarray(0, 400 * J)); // workers started and warm
+const pool = createComputePool({ threads });
+await pool.evaluateBatch(full, many.subarray(0, 400 * J)); // workers started and warm
 let allBest = Infinity;
 for (let r = 0; r < 7; r++) {
   const start = performance.now();
-  await evaluator.evaluate(many);
+  await pool.evaluateBatch(full, many);
   allBest = Math.min(allBest, performance.now() - start);
 }
-await evaluator.close();
+await pool.close();
 
 // The fit of the demo shape: 1300 random wavefronts (features of the full second-order model) and 1250 outputs.
 // The maps are random numbers, as in bench/surrogate_numpy.py: the kernels' time does not depend on them.

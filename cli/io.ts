@@ -1,5 +1,8 @@
 import { readFile } from "node:fs/promises";
 import { parseArgs } from "node:util";
+import type { OneOrMany } from "../lib/validation/oneOrMany.ts";
+import { wavefrontInputSchema } from "../lib/validation/wavefront.ts";
+import type { Wavefront } from "../lib/optics/types.ts";
 import { CliError } from "./errors.ts";
 
 /** Parse `--name value` options; every listed option is a required string unless marked optional. */
@@ -45,6 +48,18 @@ export async function readJsonFile(path: string, what: string): Promise<unknown>
   } catch (error) {
     throw new CliError(`${what} file ${path} is not valid JSON: ${(error as Error).message}`);
   }
+}
+
+/**
+ * A `--wfe` file: one wavefront or a non-empty array of them (lib/validation/wavefront.ts). The first problem
+ * becomes one line, "wavefront: ..." for a single object, "wavefront 2: ..." for an element of an array.
+ */
+export async function readWavefronts(path: string): Promise<OneOrMany<Wavefront>> {
+  const parsed = wavefrontInputSchema.safeParse(await readJsonFile(path, "wavefront"));
+  if (parsed.success) return parsed.data;
+  const issue = parsed.error.issues[0];
+  const index = typeof issue.path[0] === "number" ? ` ${issue.path[0]}` : "";
+  throw new CliError(`wavefront${index}: ${issue.message}`);
 }
 
 /** Write a JSON value to stdout, waiting for the pipe to drain. */

@@ -1,3 +1,4 @@
+import { SURROGATE_NOTICE } from "../lib/surrogate/model.ts";
 import { CliError } from "./errors.ts";
 
 /** Every command lives in `cli/commands/<name>.ts` and exports `run(argv): Promise<number>`. */
@@ -5,6 +6,8 @@ const COMMANDS: Record<string, string> = {
   ttl: "exact TTL map(s) of wavefront(s) on a setup, JSON on stdout",
   train: "train a surrogate model locally and write a .stpm file",
   eval: "evaluate a .stpm model for wavefront(s), JSON on stdout",
+  push: "register a local .stpm model as a new draft version on a server",
+  worker: "take training work from the shared queue (REDIS_URL, DATABASE_URL)",
 };
 
 const USAGE = [
@@ -12,8 +15,7 @@ const USAGE = [
   "",
   ...Object.entries(COMMANDS).map(([name, text]) => `  ${name.padEnd(8)} ${text}`),
   "",
-  "Surrogate results are engineering estimates within the model's validity range;",
-  "hardware decisions rest on the exact calculation and the mission's own review.",
+  SURROGATE_NOTICE,
 ].join("\n");
 
 export async function main(argv: string[]): Promise<number> {

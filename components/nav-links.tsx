@@ -9,7 +9,9 @@ export function NavLinks({ items }: { items: { href: string; label: string }[] }
     <nav aria-label="Workspace">
       <ul className="flex gap-1">
         {items.map((item) => {
-          const current = item.href === "/" ? pathname === "/" : pathname.startsWith(item.href);
+          // Models, their versions and runs belong to the catalogue.
+          const current =
+            item.href === "/" ? pathname === "/" || pathname.startsWith("/models") || pathname.startsWith("/runs") : pathname.startsWith(item.href);
           return (
             <li key={item.href}>
               <Link

@@ -1,4 +1,4 @@
-import { hasAnyRole, type Role } from "@/lib/auth/roles";
+import { hasAnyRole, type Role } from "@/lib/access/roles";
 
 export interface NavItem {
   href: string;
@@ -10,6 +10,8 @@ export interface NavItem {
 // Only pages that exist are listed; each page checks the same roles on the server.
 export const NAV_ITEMS: readonly NavItem[] = [
   { href: "/", label: "Catalogue", roles: ["viewer", "modeller", "reviewer", "admin"] },
+  { href: "/setups", label: "Setups", roles: ["viewer", "modeller", "reviewer", "admin"] },
+  { href: "/tokens", label: "Tokens", roles: ["viewer", "modeller", "reviewer", "admin"] },
   { href: "/account", label: "Account", roles: ["viewer", "modeller", "reviewer", "admin"] },
   { href: "/people", label: "People", roles: ["admin"] },
 ];

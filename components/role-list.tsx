@@ -1,4 +1,4 @@
-import type { Role } from "@/lib/auth/roles";
+import type { Role } from "@/lib/access/roles";
 
 export function RoleList({ roles }: { roles: readonly Role[] }) {
   if (roles.length === 0) return <span className="text-muted">no roles</span>;

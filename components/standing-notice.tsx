@@ -1,6 +1,6 @@
-export const STANDING_NOTICE =
-  "Surrogate results are engineering estimates within the model's validity range; decisions about flight hardware rest on the exact calculation and the mission's own review.";
+import { SURROGATE_NOTICE } from "@/lib/surrogate/model";
 
+/** The product's notice on surrogate results, shown on every page (the one constant in lib/surrogate/model.ts). */
 export function StandingNotice() {
-  return <p className="text-xs text-muted">{STANDING_NOTICE}</p>;
+  return <p className="text-xs text-muted">{SURROGATE_NOTICE}</p>;
 }

@@ -38,4 +38,64 @@ export class ConflictError extends DomainError {
 export class OutsideValidityRangeError extends DomainError {
   readonly status = 422;
   readonly title = "Outside the validity range";
+  constructor(
+    message: string,
+    readonly issues: { path: string; message: string }[] = [],
+  ) {
+    super(message);
+  }
+}
+
+/** A request that is well formed but cannot be processed as sent (a damaged file, a mismatched grid). */
+export class UnprocessableError extends DomainError {
+  readonly status = 422;
+  readonly title = "Unprocessable request";
+  constructor(
+    message: string,
+    /** Field issues in the problem details' `issues` shape, when the request has several things wrong. */
+    readonly issues: { path: string; message: string }[] = [],
+  ) {
+    super(message);
+  }
+}
+
+/** A version past its sunset: it is no longer served for evaluation. */
+export class GoneError extends DomainError {
+  readonly status = 410;
+  readonly title = "Gone";
+}
+
+/** Too many requests for the caller's rate limit. */
+export class RateLimitedError extends DomainError {
+  readonly status = 429;
+  readonly title = "Too many requests";
+  constructor(
+    message: string,
+    readonly retryAfterSeconds: number,
+  ) {
+    super(message);
+  }
+}
+
+export class PayloadTooLargeError extends DomainError {
+  readonly status = 413;
+  readonly title = "Too large";
+}
+
+/** A service the request depends on (database, queue) is down; the client may retry after `retryAfterSeconds`. */
+export class ServiceUnavailableError extends DomainError {
+  readonly status = 503;
+  readonly title = "Service unavailable";
+  constructor(
+    message: string,
+    readonly retryAfterSeconds = 5,
+  ) {
+    super(message);
+  }
+}
+
+/** A body that is not what the route reads at all (not JSON, not multipart). */
+export class BadRequestError extends DomainError {
+  readonly status = 400;
+  readonly title = "Malformed request";
 }

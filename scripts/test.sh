@@ -9,6 +9,12 @@ cd "$repo_root"
 instance=test
 export DATABASE_PORT="${TEST_DATABASE_PORT:-3317}"
 export DATABASE_NAME="stillpoint_test_r$$"
+export REDIS_PORT="${TEST_REDIS_PORT:-6390}"
+export REDIS_URL="redis://127.0.0.1:$REDIS_PORT"
+# Each run has its own keys in the shared test Redis.
+export QUEUE_PREFIX="stillpoint-test-r$$"
+# Workers started by the tests give up a dead worker's job after 2 s instead of 30.
+export WORKER_LOCK_MS=2000
 export NEXTAUTH_SECRET="$(random_secret)"
 # Full-stack tests serve on a random port: take the origin from the request's Host header.
 export AUTH_TRUST_HOST=true
@@ -24,6 +30,7 @@ root_sql() { mariadb --no-defaults --socket=".data/mariadb-$instance/mariadb.soc
 cleanup() {
   trap - EXIT INT TERM
   root_sql "DROP DATABASE IF EXISTS \`$DATABASE_NAME\`" 2>/dev/null || true
+  redis-cli -p "$REDIS_PORT" --scan --pattern "$QUEUE_PREFIX:*" 2>/dev/null | xargs -r redis-cli -p "$REDIS_PORT" del >/dev/null 2>&1 || true
   rm -f "$runs_dir/$$" "$report"
   # Stop the test instance unless another test run is still using it.
   local other
@@ -33,6 +40,7 @@ cleanup() {
     rm -f "$other"
   done
   bash db/mariadb.sh stop "$instance" || true
+  bash db/redis.sh stop "$instance" || true
 }
 trap cleanup EXIT
 trap 'exit 130' INT
@@ -43,6 +51,7 @@ started=$(date +%s)
 fail() { echo "[test] $*" >&2; exit 1; }
 
 bash db/mariadb.sh start "$instance" || fail "could not start the test database"
+bash db/redis.sh start "$instance" || fail "could not start the test Redis"
 root_sql "DROP DATABASE IF EXISTS \`$DATABASE_NAME\`; CREATE DATABASE \`$DATABASE_NAME\` CHARACTER SET utf8mb4 COLLATE utf8mb4_unicode_ci; GRANT ALL PRIVILEGES ON \`$DATABASE_NAME%\`.* TO 'app'@'127.0.0.1';" \
   || fail "could not create $DATABASE_NAME"
 knex_cli migrate:latest || fail "migrations failed"

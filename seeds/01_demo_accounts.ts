@@ -1,7 +1,7 @@
 import type { Knex } from "knex";
 import { countUsers, createUser } from "../lib/db/users";
 import { hashPassword } from "../lib/auth/password";
-import type { Role } from "../lib/auth/roles";
+import type { Role } from "../lib/access/roles";
 
 /** The Velora demo team (DESIGN.md); the password is printed in README.md. */
 export const DEMO_PASSWORD = "velora-demo-2026";

@@ -1,10 +1,10 @@
 import { readFile } from "node:fs/promises";
-import { thetaGridNrad, toTtlMap, wavefrontToVector, type TtlMap, type Wavefront } from "../../lib/optics/index.ts";
+import { thetaGridNrad, toTtlMap, wavefrontToVector, type TtlMap } from "../../lib/optics/index.ts";
 import {
   decodeModel, evaluateBatch, ModelFileError, SURROGATE_NOTICE, validityWarnings, type SurrogateModel,
 } from "../../lib/surrogate/index.ts";
 import { CliError } from "../errors.ts";
-import { parseOptions, readJsonFile, writeJson } from "../io.ts";
+import { parseOptions, readWavefronts, writeJson } from "../io.ts";
 
 /** A surrogate TTL map as printed: the DESIGN.md TTL map plus its validity warnings and the product's notice. */
 export interface SurrogateTtlMap extends TtlMap {
@@ -38,10 +38,7 @@ export async function readModelFile(path: string): Promise<SurrogateModel> {
 export async function run(argv: string[]): Promise<number> {
   const options = parseOptions(argv, ["model", "wfe"]);
   const model = await readModelFile(options.model);
-  const input = await readJsonFile(options.wfe, "wavefront");
-  const single = !Array.isArray(input);
-  const wavefronts = (single ? [input] : input) as Wavefront[];
-  if (wavefronts.length === 0) throw new CliError("wavefront file holds an empty array");
+  const { single, items: wavefronts } = await readWavefronts(options.wfe);
 
   const J = model.nollIndices.length;
   const coefficients = new Float64Array(wavefronts.length * J);

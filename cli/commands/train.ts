@@ -1,7 +1,7 @@
 import { randomBytes } from "node:crypto";
 import { readFile, rename, unlink, writeFile } from "node:fs/promises";
 import { basename, dirname, join, resolve } from "node:path";
-import { z } from "zod";
+import type { z } from "zod";
 import {
   thetaGridNrad, toNollIndices, validateSetup, wavefrontToVector, type OpticalSetup, type Wavefront, type ZernikeSet,
 } from "../../lib/optics/index.ts";
@@ -9,28 +9,12 @@ import { propagateMany } from "../../lib/parallel/index.ts";
 import {
   encodeModel, fullTermCount, SURROGATE_NOTICE, trainSurrogate, type SampleSet, type TrainingPhase,
 } from "../../lib/surrogate/index.ts";
+import { trainingSpecSchema } from "../../lib/validation/training.ts";
 import { CliError } from "../errors.ts";
 import { parseOptions, parseThreads, readJsonFile } from "../io.ts";
 
-const positive = z.number().finite().positive();
-const seed = z.number().int().refine(Number.isSafeInteger, "must be a safe integer");
-const randomSet = z.object({ size: z.number().int().positive(), maxRmsNm: positive, seed }).strict();
-
-/** `spec.json` (DESIGN.md): setup, Zernike set, order, generating set and validation set. */
-const specSchema = z
-  .object({
-    setup: z.record(z.string(), z.unknown()),
-    zernike: z.object({ ordering: z.enum(["noll", "ansi"]), indices: z.array(z.number().int()).min(1) }).strict(),
-    order: z.union([z.literal(1), z.literal(2)]),
-    generatingSet: z.discriminatedUnion("design", [
-      randomSet.extend({ design: z.literal("random") }),
-      z.object({ design: z.literal("axes-and-pairs"), maxRmsNm: positive }).strict(),
-      /** A JSON file of `{ "samples": [{ "wfe": wavefront, "map": TTL map }] }`, relative to the spec file. */
-      z.object({ design: z.literal("uploaded"), file: z.string().min(1) }).strict(),
-    ]),
-    validationSet: randomSet.nullable().optional(),
-  })
-  .strict();
+/** `spec.json` (DESIGN.md): the shared training schema, with uploaded sets named by file. */
+const specSchema = trainingSpecSchema;
 
 export type TrainingSpec = z.infer<typeof specSchema>;
 
@@ -81,6 +65,9 @@ async function readUploadedSet(path: string, setup: OpticalSetup, zernike: Zerni
       }
       rows.forEach((row: unknown[], iy: number) =>
         row.forEach((value, ix) => {
+          if (value === null) {
+            throw new CliError(`${where}: map ${axis}[${iy}][${ix}] is null (TTL undefined at a far-field null); a surrogate cannot be trained on it`);
+          }
           if (typeof value !== "number" || !Number.isFinite(value)) throw new CliError(`${where}: map ${axis}[${iy}][${ix}] must be a finite number`);
           target[s * M * M + iy * M + ix] = value;
         }),
@@ -146,10 +133,16 @@ export async function run(argv: string[]): Promise<number> {
   } catch (error) {
     throw new CliError(`invalid spec ${options.spec}: ${(error as Error).message}`);
   }
+  const readSet = (file: string) => readUploadedSet(resolve(dirname(options.spec), file), setup, spec.zernike);
   const generatingSet =
     spec.generatingSet.design === "uploaded"
-      ? { design: "uploaded" as const, set: await readUploadedSet(resolve(dirname(options.spec), spec.generatingSet.file), setup, spec.zernike) }
+      ? { design: "uploaded" as const, set: await readSet(spec.generatingSet.file) }
       : spec.generatingSet;
+  const validationSet = !spec.validationSet
+    ? null
+    : "design" in spec.validationSet
+      ? { design: "uploaded" as const, set: await readSet(spec.validationSet.file) }
+      : spec.validationSet;
 
   const began = performance.now();
   process.stderr.write(
@@ -164,14 +157,12 @@ export async function run(argv: string[]): Promise<number> {
         zernike: spec.zernike,
         order: spec.order,
         generatingSet,
-        validationSet: spec.validationSet ?? null,
+        validationSet,
         softwareVersion: await softwareVersion(),
         createdAt: new Date().toISOString(),
       },
-      async (noll, coefficientsNm, onProgress) => {
-        const maps = await propagateMany(setup, noll, coefficientsNm, { threads, onProgress });
-        return { x: maps.x, y: maps.y };
-      },
+      (noll, coefficientsNm, onProgress) =>
+        propagateMany(setup, noll, coefficientsNm, { threads, onProgress }),
       progressReporter(),
     );
   } catch (error) {

@@ -1,19 +1,20 @@
-import { thetaGridNrad, toTtlMap, unionNollIndices, validateSetup, wavefrontToVector, type Wavefront } from "../../lib/optics/index.ts";
+import {
+  thetaGridNrad, toTtlMap, undefinedNodesWarning, unionNollIndices, validateSetup, wavefrontToVector,
+} from "../../lib/optics/index.ts";
 import { propagateMany } from "../../lib/parallel/index.ts";
-import { CliError } from "../errors.ts";
-import { parseOptions, parseThreads, readJsonFile, writeJson } from "../io.ts";
+import { parseOptions, parseThreads, readJsonFile, readWavefronts, writeJson } from "../io.ts";
 
 /** Below this many wavefronts, starting worker threads costs more than it saves. */
 const PARALLEL_FROM = 64;
 
-/** `stillpoint ttl --setup setup.json --wfe wfe.json`: exact TTL map(s) as JSON on stdout. */
+/**
+ * `stillpoint ttl --setup setup.json --wfe wfe.json`: exact TTL map(s) as JSON on stdout; a node where the
+ * far field vanishes is `null`, with a warning on stderr.
+ */
 export async function run(argv: string[]): Promise<number> {
   const options = parseOptions(argv, ["setup", "wfe"], ["threads"]);
   const setup = validateSetup(await readJsonFile(options.setup, "setup"));
-  const input = await readJsonFile(options.wfe, "wavefront");
-  const single = !Array.isArray(input);
-  const wavefronts = (single ? [input] : input) as Wavefront[];
-  if (wavefronts.length === 0) throw new CliError("wavefront file holds an empty array");
+  const { single, items: wavefronts } = await readWavefronts(options.wfe);
 
   const noll = unionNollIndices(wavefronts);
   const terms = Math.max(noll.length, 1);
@@ -27,7 +28,9 @@ export async function run(argv: string[]): Promise<number> {
   });
   const nodes = maps.pointsPerAxis * maps.pointsPerAxis;
   const theta = thetaGridNrad(setup.farField);
-  const out = wavefronts.map((_, s) => toTtlMap(theta, maps.x, maps.y, s * nodes));
+  const out = wavefronts.map((_, s) => toTtlMap(theta, maps.x, maps.y, s * nodes, maps.undefinedNodes));
+  const warning = undefinedNodesWarning(maps);
+  if (warning !== null) process.stderr.write(`warning: ${warning}\n`);
   await writeJson(single ? out[0] : out);
   return 0;
 }

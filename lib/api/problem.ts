@@ -1,5 +1,5 @@
 import { ZodError } from "zod";
-import { DomainError } from "../errors";
+import { DomainError, RateLimitedError, ServiceUnavailableError, UnauthenticatedError } from "../errors";
 
 /** RFC 9457 problem details. */
 export interface ProblemDetails {
@@ -13,11 +13,28 @@ export interface ProblemDetails {
 
 export const PROBLEM_CONTENT_TYPE = "application/problem+json";
 
-export function problemResponse(problem: ProblemDetails): Response {
+export function problemResponse(problem: ProblemDetails, headers: Record<string, string> = {}): Response {
   return new Response(JSON.stringify(problem), {
     status: problem.status,
-    headers: { "content-type": PROBLEM_CONTENT_TYPE, "cache-control": "no-store" },
+    headers: { "content-type": PROBLEM_CONTENT_TYPE, "cache-control": "no-store", ...headers },
   });
+}
+
+/** Headers a problem carries with it: the Bearer challenge of a 401, the Retry-After of a 503. */
+export function problemHeaders(error: unknown): Record<string, string> {
+  if (error instanceof UnauthenticatedError) return { "www-authenticate": 'Bearer realm="stillpoint"' };
+  if (error instanceof ServiceUnavailableError || error instanceof RateLimitedError) return { "retry-after": String(Math.max(1, Math.ceil(error.retryAfterSeconds))) };
+  if (isConnectionFailure(error)) return { "retry-after": "5" };
+  return {};
+}
+
+const CONNECTION_CODES = new Set(["ECONNREFUSED", "ECONNRESET", "ETIMEDOUT", "PROTOCOL_CONNECTION_LOST", "EPIPE", "ER_CON_COUNT_ERROR"]);
+
+/** A database or queue that cannot be reached: the client's request was fine, a dependency is down. */
+function isConnectionFailure(error: unknown): boolean {
+  const code = (error as { code?: unknown } | null)?.code;
+  const name = (error as { name?: unknown } | null)?.name;
+  return (typeof code === "string" && CONNECTION_CODES.has(code)) || name === "KnexTimeoutError";
 }
 
 /** The one mapping from anything thrown by a handler to a problem-details response. */
@@ -36,7 +53,11 @@ export function toProblem(error: unknown, instance?: string): ProblemDetails {
     };
   }
   if (error instanceof DomainError) {
-    return { type: "about:blank", title: error.title, status: error.status, detail: error.message, instance };
+    const issues = (error as { issues?: { path: string; message: string }[] }).issues;
+    return { type: "about:blank", title: error.title, status: error.status, detail: error.message, instance, ...(issues && issues.length > 0 ? { issues } : {}) };
+  }
+  if (isConnectionFailure(error)) {
+    return { type: "about:blank", title: "Service unavailable", status: 503, detail: "A service the registry depends on is not reachable; retry shortly.", instance };
   }
   if (error instanceof SyntaxError) {
     return { type: "about:blank", title: "Malformed JSON", status: 400, detail: "The request body is not valid JSON.", instance };
@@ -59,7 +80,7 @@ export function withProblems<C>(handler: Handler<C>): Handler<C> {
     try {
       return await handler(request, context);
     } catch (error) {
-      return problemResponse(toProblem(error, new URL(request.url).pathname));
+      return problemResponse(toProblem(error, new URL(request.url).pathname), problemHeaders(error));
     }
   };
 }

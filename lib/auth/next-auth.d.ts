@@ -1,4 +1,4 @@
-import type { Role } from "./roles";
+import type { Role } from "../access/roles";
 
 declare module "next-auth" {
   interface User {

@@ -1,11 +1,11 @@
 import type { NextAuthOptions, User } from "next-auth";
 import CredentialsProvider from "next-auth/providers/credentials";
-import { getConfig } from "../config";
+import { requireAuthSecret } from "../config";
 import { recordAuditEvent } from "../db/audit";
 import { findCredentialsByEmail, getUser, normaliseEmail } from "../db/users";
 import { signInSchema } from "../validation/auth";
 import { verifyPassword } from "./password";
-import { isRole } from "./roles";
+import { isRole } from "../access/roles";
 
 const SESSION_HOURS = 12;
 
@@ -32,7 +32,7 @@ async function authorize(raw: Record<string, unknown> | undefined): Promise<User
 /** next-auth settings; built on demand so the secret is read from the validated configuration at run time. */
 export function authOptions(): NextAuthOptions {
   return {
-    secret: getConfig().authSecret,
+    secret: requireAuthSecret(),
     session: { strategy: "jwt", maxAge: SESSION_HOURS * 3600 },
     pages: { signIn: "/sign-in", error: "/sign-in" },
     providers: [

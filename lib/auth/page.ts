@@ -1,7 +1,7 @@
 import { forbidden, redirect } from "next/navigation";
 import type { UserSummary } from "../db/users";
 import { ForbiddenError, UnauthenticatedError } from "../errors";
-import type { Role } from "./roles";
+import type { Role } from "../access/roles";
 import { requireRole, requireUser } from "./session";
 
 /** Pages turn the helpers' errors into the framework's answers: sign-in redirect, or the forbidden page. */

@@ -3,7 +3,7 @@ import { cache } from "react";
 import { getUser, type UserSummary } from "../db/users";
 import { ForbiddenError, UnauthenticatedError } from "../errors";
 import { authOptions } from "./options";
-import { hasAnyRole, type Role } from "./roles";
+import { hasAnyRole, type Role } from "../access/roles";
 
 /**
  * The signed-in person, read fresh from the database so that removed accounts and changed

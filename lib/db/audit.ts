@@ -1,5 +1,5 @@
 import type { Knex } from "knex";
-import { db } from "./knex";
+import { db } from "./knex.ts";
 
 interface AuditEventRow {
   id: number | string;

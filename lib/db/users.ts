@@ -1,6 +1,6 @@
 import type { Knex } from "knex";
 import { db } from "./knex";
-import { isRole, ROLES, type Role } from "../auth/roles";
+import { isRole, ROLES, type Role } from "../access/roles";
 
 interface UserRow {
   id: number;

@@ -1,3 +1,4 @@
+import { requireFiniteCoefficients } from "./checks.ts";
 import { foldedKernels, foldedTransform, type FoldedKernels } from "./matrixFourier.ts";
 import { phasorsInto } from "./phasor.ts";
 import { apertureTransmission, pupilCoordinates } from "./pupil.ts";
@@ -7,6 +8,13 @@ import { ZernikeTerm } from "./zernike.ts";
 
 /** 1 m/rad of optical path per pointing angle is 1e3 pm/nrad. */
 const PM_PER_NRAD_PER_M_PER_RAD = 1e3;
+
+/**
+ * A node whose |E| is below this fraction of `sum |U|` (the largest |E| any phase can give) is a
+ * far-field null: the rounding of the sums (about 1e-16 sqrt(N) of `sum |U|`) is then as large as
+ * E itself, so its phase, and the TTL, are undefined (PHYSICS.md section 2).
+ */
+export const NULL_FIELD_RELATIVE = 1e-13;
 
 /** The four mirrored members of a pupil sample: (+x, +y), (-x, +y), (+x, -y), (-x, -y). */
 const QUADRANTS = 4;
@@ -50,6 +58,8 @@ export class TtlPropagator {
   /** Parity class of each term: bit 0 set when odd in x, bit 1 when odd in y. */
   private readonly parityClass: Uint8Array;
   private readonly kernels: FoldedKernels;
+  /** |E|^2 at or below which a node is a null: (NULL_FIELD_RELATIVE sum |U|)^2. */
+  private readonly nullIntensity: number;
 
   // Work buffers, reused by every call (one propagator per thread).
   /** Phase sums per parity class, [class][cell]. */
@@ -131,11 +141,17 @@ export class TtlPropagator {
           this.amplitude[quadrant * cells + cell] = duplicate ? 0 : transmission[iy * n + ix] * gaussian;
         }
         this.fresnelPhase[cell] = (k * r2) / (2 * distanceM);
-        const rho = Math.sqrt(r2) / radius;
+        // A partly covered edge cell whose centre lies outside the disc takes the rim value
+        // (PHYSICS.md section 2): the polynomials mean nothing beyond rho = 1.
+        const rho = Math.min(Math.sqrt(r2) / radius, 1);
         const phi = Math.atan2(y, xPair[q]);
         for (let t = 0; t < terms.length; t++) this.basis[t * cells + cell] = phasePerNm * terms[t].at(rho, phi);
       }
     }
+
+    let amplitudeSum = 0;
+    for (let i = 0; i < this.amplitude.length; i++) amplitudeSum += this.amplitude[i];
+    this.nullIntensity = (NULL_FIELD_RELATIVE * amplitudeSum) ** 2;
 
     const thetaRad = this.thetaNrad.map((v) => v * 1e-9);
     this.kernels = foldedKernels(k, thetaRad, xPair);
@@ -168,22 +184,23 @@ export class TtlPropagator {
 
   /**
    * TTL maps of one wavefront: `c_x(theta)`, `c_y(theta)` in pm/nrad, written row-major
-   * (`iy * M + ix`) into `outX`/`outY` from `outOffset`.
+   * (`iy * M + ix`) into `outX`/`outY` from `outOffset`. A node where the field vanishes
+   * (see {@link NULL_FIELD_RELATIVE}) gets 0 in both maps and its index (`outOffset + iy * M + ix`)
+   * is pushed onto `undefinedNodes`.
    * @param coefficientsNm RMS coefficients in nm, in the order of `nollIndices`
+   * @param undefinedNodes receives the indices of undefined nodes (omit to drop them)
+   * @returns the number of undefined nodes in this map (0 in every ordinary case)
    * @throws RangeError when the coefficient count is wrong or a coefficient is not finite.
    */
-  ttlInto(coefficientsNm: ArrayLike<number>, outX: Float64Array, outY: Float64Array, outOffset = 0): void {
+  ttlInto(
+    coefficientsNm: ArrayLike<number>, outX: Float64Array, outY: Float64Array, outOffset = 0, undefinedNodes?: number[],
+  ): number {
     this.checkCoefficients(coefficientsNm);
     this.pupilField(coefficientsNm);
     this.farField();
-    const nodes = this.nodeCount;
     const { eRe, eIm, exRe, exIm, eyRe, eyIm } = this;
-    for (let i = 0; i < nodes; i++) {
-      const intensity = eRe[i] * eRe[i] + eIm[i] * eIm[i];
-      const scale = -PM_PER_NRAD_PER_M_PER_RAD / intensity;
-      outX[outOffset + i] = scale * (eRe[i] * exRe[i] + eIm[i] * exIm[i]);
-      outY[outOffset + i] = scale * (eRe[i] * eyRe[i] + eIm[i] * eyIm[i]);
-    }
+    const field = { eRe, eIm, exRe, exIm, eyRe, eyIm };
+    return ttlFromFieldInto(field, this.nodeCount, this.nullIntensity, outX, outY, outOffset, undefinedNodes);
   }
 
   /**
@@ -199,24 +216,17 @@ export class TtlPropagator {
     outIm.set(this.eIm);
   }
 
-  /** TTL maps of one wavefront as new arrays; see {@link ttlInto}. */
-  ttl(coefficientsNm: ArrayLike<number>): { x: Float64Array; y: Float64Array } {
+  /** TTL maps of one wavefront as new arrays, with the indices of undefined nodes; see {@link ttlInto}. */
+  ttl(coefficientsNm: ArrayLike<number>): { x: Float64Array; y: Float64Array; undefinedNodes: number[] } {
     const x = new Float64Array(this.nodeCount);
     const y = new Float64Array(this.nodeCount);
-    this.ttlInto(coefficientsNm, x, y);
-    return { x, y };
+    const undefinedNodes: number[] = [];
+    this.ttlInto(coefficientsNm, x, y, 0, undefinedNodes);
+    return { x, y, undefinedNodes };
   }
 
   private checkCoefficients(coefficientsNm: ArrayLike<number>): void {
-    const terms = this.nollIndices.length;
-    if (coefficientsNm.length !== terms) {
-      throw new RangeError(`expected ${terms} coefficients, got ${coefficientsNm.length}`);
-    }
-    for (let t = 0; t < terms; t++) {
-      if (!Number.isFinite(coefficientsNm[t])) {
-        throw new RangeError(`coefficient of Noll term ${this.nollIndices[t]} must be a finite number`);
-      }
-    }
+    requireFiniteCoefficients(coefficientsNm, this.nollIndices);
   }
 
   /** Pupil field in all four quadrants: amplitude times exp(i (Fresnel + k W)). */
@@ -293,4 +303,43 @@ export class TtlPropagator {
       foldQIm[q] = im[r] - lIm;
     }
   }
+}
+
+/** The far field at M^2 nodes: E, and the moments E_x, E_y of the angular derivatives. */
+export interface FarFieldMoments {
+  eRe: Float64Array;
+  eIm: Float64Array;
+  exRe: Float64Array;
+  exIm: Float64Array;
+  eyRe: Float64Array;
+  eyIm: Float64Array;
+}
+
+/**
+ * TTL from the far field: `c_x = -Re(conj(E) E_x) / |E|^2` (likewise c_y), times 1e3 for pm/nrad
+ * (PHYSICS.md section 3). Where `|E|^2 <= nullIntensity` the phase of E, and so the TTL, is
+ * undefined (PHYSICS.md section 2): both outputs get 0 and the node index is pushed onto
+ * `undefinedNodes`, so that no NaN or infinity ever leaves.
+ * @returns the number of undefined nodes
+ */
+export function ttlFromFieldInto(
+  field: FarFieldMoments, nodes: number, nullIntensity: number,
+  outX: Float64Array, outY: Float64Array, outOffset = 0, undefinedNodes?: number[],
+): number {
+  const { eRe, eIm, exRe, exIm, eyRe, eyIm } = field;
+  let nulls = 0;
+  for (let i = 0; i < nodes; i++) {
+    const intensity = eRe[i] * eRe[i] + eIm[i] * eIm[i];
+    if (!(intensity > nullIntensity)) {
+      outX[outOffset + i] = 0;
+      outY[outOffset + i] = 0;
+      undefinedNodes?.push(outOffset + i);
+      nulls++;
+      continue;
+    }
+    const scale = -PM_PER_NRAD_PER_M_PER_RAD / intensity;
+    outX[outOffset + i] = scale * (eRe[i] * exRe[i] + eIm[i] * exIm[i]);
+    outY[outOffset + i] = scale * (eRe[i] * eyRe[i] + eIm[i] * eyIm[i]);
+  }
+  return nulls;
 }

@@ -28,17 +28,25 @@ export interface Wavefront {
   coefficientsNm: Record<string, number>;
 }
 
-/** TTL coupling map, row-major `[iy][ix]` at `(thetaNrad[ix], thetaNrad[iy])`, in pm/nrad. */
+/**
+ * TTL coupling map, row-major `[iy][ix]` at `(thetaNrad[ix], thetaNrad[iy])`, in pm/nrad; `null` at
+ * a node where the TTL is undefined (an exact far-field null, PHYSICS.md section 2).
+ */
 export interface TtlMap {
   thetaNrad: number[];
-  ttlXPmPerNrad: number[][];
-  ttlYPmPerNrad: number[][];
+  ttlXPmPerNrad: (number | null)[][];
+  ttlYPmPerNrad: (number | null)[][];
 }
 
-/** Flat TTL maps: `x[s * M * M + iy * M + ix]`, pm/nrad. */
+/**
+ * Flat TTL maps: `x[s * M * M + iy * M + ix]`, pm/nrad. Nodes where |E| = 0 have no phase and so no
+ * TTL (PHYSICS.md section 2): they are listed in `undefinedNodes` (flat indices as above, ascending)
+ * and hold 0 in `x` and `y`, never NaN. Writers emit `null` there; training refuses them.
+ */
 export interface FlatTtlMaps {
   pointsPerAxis: number;
   count: number;
   x: Float64Array;
   y: Float64Array;
+  undefinedNodes: Int32Array;
 }

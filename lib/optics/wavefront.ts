@@ -1,3 +1,4 @@
+import { CHECK_MESSAGES } from "./checks.ts";
 import type { Wavefront, ZernikeOrdering } from "./types.ts";
 import { toNollIndex } from "./zernike.ts";
 
@@ -24,7 +25,7 @@ export function nollCoefficients(wavefront: Wavefront): Map<number, number> {
     const index = /^\d+$/.test(key) ? Number(key) : Number.NaN;
     const noll = toNollIndex(wavefront.ordering, index);
     if (typeof value !== "number" || !Number.isFinite(value)) {
-      throw new RangeError(`coefficient of ${wavefront.ordering} term ${key} must be a finite number`);
+      throw new RangeError(CHECK_MESSAGES.coefficientNotFinite(wavefront.ordering, key));
     }
     if (out.has(noll)) throw new RangeError(`${wavefront.ordering} term ${key} is given more than once`);
     out.set(noll, value);

@@ -93,16 +93,36 @@ export function toNollIndex(ordering: ZernikeOrdering, index: number): number {
 }
 
 /**
+ * Check a list of Noll indices (a model's variables, a Zernike set after conversion): not empty,
+ * every index valid, no term twice. The one Noll-list check of the product.
+ * @param what how the list is named in messages
+ * @returns a copy of the list
+ * @throws RangeError "<what> must list at least one term" / "Noll index must be an integer from 1 to 325, got x" /
+ *   "<what> lists Noll term j more than once"
+ */
+export function requireNollIndices(nollIndices: ArrayLike<number>, what = "Noll index list"): number[] {
+  if (nollIndices.length === 0) throw new RangeError(`${what} must list at least one term`);
+  const seen = new Set<number>();
+  const out: number[] = [];
+  for (let i = 0; i < nollIndices.length; i++) {
+    const j = nollIndices[i];
+    nollToOrders(j);
+    if (seen.has(j)) throw new RangeError(`${what} lists Noll term ${j} more than once`);
+    seen.add(j);
+    out.push(j);
+  }
+  return out;
+}
+
+/**
  * Noll indices of a Zernike set, in the set's order.
  * @throws TypeError for an unknown ordering or a non-array index list;
- *   RangeError for an empty list, an invalid index or a repeated term.
+ *   RangeError for an empty list, an invalid index or a repeated term ({@link requireNollIndices}).
  */
 export function toNollIndices(set: ZernikeSet): number[] {
   if (!Array.isArray(set?.indices)) throw new TypeError("Zernike set indices must be an array of integers");
   if (set.indices.length === 0) throw new RangeError("Zernike set must list at least one term");
-  const noll = set.indices.map((index) => toNollIndex(set.ordering, index));
-  if (new Set(noll).size !== noll.length) throw new RangeError("Zernike set lists a term more than once");
-  return noll;
+  return requireNollIndices(set.indices.map((index) => toNollIndex(set.ordering, index)), "Zernike set");
 }
 
 /**

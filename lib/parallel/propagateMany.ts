@@ -1,30 +1,20 @@
 import { availableParallelism } from "node:os";
-import { fileURLToPath } from "node:url";
-import { Piscina } from "piscina";
-import { validateSetup } from "../optics/setup.ts";
 import type { FlatTtlMaps, OpticalSetup } from "../optics/types.ts";
-import { runTtlTask, type TtlTask, type TtlTaskResult } from "./ttlTask.ts";
+import { createComputePool, propagateHere, type PropagationOptions } from "./computePool.ts";
 
-export interface PropagateOptions {
+export interface PropagateOptions extends PropagationOptions {
   /** Worker threads to use; 1 computes on the calling thread. Default: all cores. */
   threads?: number;
-  /** Called after each finished chunk with the number of maps done so far. */
-  onProgress?: (done: number, total: number) => void;
-  /** Cancels the work; the promise then rejects with an AbortError. */
-  signal?: AbortSignal;
-  /** Wavefronts per task sent to a worker (default: enough chunks for smooth progress). */
-  chunkSize?: number;
 }
 
-const WORKER_FILE = fileURLToPath(new URL("./ttlWorker.mjs", import.meta.url));
-
 /**
- * Exact TTL maps of many wavefronts on one setup, spread over worker threads.
- * Every thread runs the same {@link runTtlTask}, so the maps are bit-for-bit those
- * of the single-thread path.
+ * Exact TTL maps of many wavefronts on one setup, on a temporary compute pool (or on the calling thread
+ * for `threads: 1`). Every thread runs the same `runTtlTask`, so the maps are bit-for-bit those of the
+ * single-thread path. A process that propagates repeatedly keeps one `createComputePool()` instead.
  * @param coefficientsNm S x J coefficients, row-major, in the order of `nollIndices` (nm RMS)
- * @returns flat maps: `x[s * M^2 + iy * M + ix]` (pm/nrad)
- * @throws RangeError / TypeError for an invalid setup, index or coefficient (before any work starts).
+ * @returns flat maps: `x[s * M^2 + iy * M + ix]` (pm/nrad), with their undefined nodes
+ * @throws RangeError / TypeError for an invalid setup, index or coefficient (before any work starts;
+ *   coefficients as `requireFiniteCoefficients`).
  */
 export async function propagateMany(
   setup: OpticalSetup,
@@ -32,62 +22,14 @@ export async function propagateMany(
   coefficientsNm: Float64Array,
   options: PropagateOptions = {},
 ): Promise<FlatTtlMaps> {
-  const clean = validateSetup(setup);
-  const terms = nollIndices.length;
-  if (terms === 0 || coefficientsNm.length % terms !== 0) {
-    throw new RangeError(`coefficient array length ${coefficientsNm.length} is not a multiple of ${terms} terms`);
-  }
-  for (let i = 0; i < coefficientsNm.length; i++) {
-    if (!Number.isFinite(coefficientsNm[i])) {
-      throw new RangeError(`coefficient ${i % terms} of wavefront ${Math.floor(i / terms)} must be a finite number`);
-    }
-  }
-  const count = coefficientsNm.length / terms;
-  const m = clean.farField.pointsPerAxis;
-  const nodes = m * m;
-  const threads = Math.max(1, Math.min(options.threads ?? availableParallelism(), count));
-  const chunk = options.chunkSize ?? Math.max(1, Math.min(64, Math.ceil(count / (threads * 8))));
-  const x = new Float64Array(count * nodes);
-  const y = new Float64Array(count * nodes);
-  const tasks: TtlTask[] = [];
-  for (let start = 0; start < count; start += chunk) {
-    const size = Math.min(chunk, count - start);
-    tasks.push({
-      setup: clean,
-      nollIndices: [...nollIndices],
-      coefficientsNm: coefficientsNm.slice(start * terms, (start + size) * terms),
-      count: size,
-    });
-  }
-  let done = 0;
-  const collect = (index: number, result: TtlTaskResult) => {
-    x.set(result.x, index * chunk * nodes);
-    y.set(result.y, index * chunk * nodes);
-    done += tasks[index].count;
-    options.onProgress?.(done, count);
-  };
-
-  if (threads === 1) {
-    for (let i = 0; i < tasks.length; i++) {
-      options.signal?.throwIfAborted();
-      collect(i, runTtlTask(tasks[i]));
-      await new Promise((resolve) => setImmediate(resolve)); // let progress and cancellation through
-    }
-    return { pointsPerAxis: m, count, x, y };
-  }
-
-  const pool = new Piscina({ filename: WORKER_FILE, minThreads: threads, maxThreads: threads, idleTimeout: 1000 });
+  const { threads, ...propagation } = options;
+  const terms = Math.max(1, nollIndices.length);
+  const count = Math.floor(coefficientsNm.length / terms);
+  if (threads === 1 || count <= 1) return propagateHere(setup, nollIndices, coefficientsNm, propagation);
+  const pool = createComputePool({ threads: Math.min(threads ?? availableParallelism(), count) });
   try {
-    await Promise.all(
-      tasks.map((task, i) =>
-        pool.run(task, { signal: options.signal ?? null }).then((both: Float64Array) => {
-          const half = both.length / 2;
-          collect(i, { x: both.subarray(0, half), y: both.subarray(half) });
-        }),
-      ),
-    );
+    return await pool.propagate(setup, nollIndices, coefficientsNm, propagation);
   } finally {
-    await pool.destroy();
+    await pool.close();
   }
-  return { pointsPerAxis: m, count, x, y };
 }

@@ -12,6 +12,8 @@ export interface TtlTask {
 export interface TtlTaskResult {
   x: Float64Array;
   y: Float64Array;
+  /** Indices `s * M^2 + iy * M + ix` (within this task) where the TTL is undefined (an exact null). */
+  undefinedNodes: number[];
 }
 
 let cached: { key: string; propagator: TtlPropagator } | null = null;
@@ -30,8 +32,9 @@ export function runTtlTask(task: TtlTask): TtlTaskResult {
   const nodes = propagator.nodeCount;
   const x = new Float64Array(task.count * nodes);
   const y = new Float64Array(task.count * nodes);
+  const undefinedNodes: number[] = [];
   for (let s = 0; s < task.count; s++) {
-    propagator.ttlInto(task.coefficientsNm.subarray(s * terms, (s + 1) * terms), x, y, s * nodes);
+    propagator.ttlInto(task.coefficientsNm.subarray(s * terms, (s + 1) * terms), x, y, s * nodes, undefinedNodes);
   }
-  return { x, y };
+  return { x, y, undefinedNodes };
 }

@@ -1,6 +1,7 @@
 import { kernelInstance, MODE_SET, type KernelInstance } from "../kernels/instance.ts";
 import { packColumns, type PackedColumns } from "../linalg/index.ts";
 import { multiplyPackedIntoReference } from "../linalg/matrixProduct.ts";
+import { requireFiniteCoefficients } from "../optics/checks.ts";
 import { interpolateMap } from "./interpolate.ts";
 import type { SurrogateModel } from "./model.ts";
 import { compileTerms, featuresInto, type CompiledTerms } from "./terms.ts";
@@ -45,23 +46,13 @@ export function compiledTermsOf(model: SurrogateModel): CompiledTerms {
 }
 
 /**
- * Check a coefficient vector (model Noll order, nm RMS) or a row-major batch of them.
- * @throws {RangeError} "wavefront must have J coefficients" / "coefficient of Zj must be a finite number (wavefront s)"
+ * Check a coefficient vector (model Noll order, nm RMS) or a row-major batch of them: the core's one
+ * finite-coefficient check, {@link requireFiniteCoefficients}.
+ * @returns the number of wavefronts
+ * @throws {RangeError} as {@link requireFiniteCoefficients}
  */
 export function checkCoefficients(model: SurrogateModel, coefficientsNm: ArrayLike<number>, batch = false): number {
-  const termCountJ = model.nollIndices.length;
-  if (batch ? coefficientsNm.length % termCountJ !== 0 : coefficientsNm.length !== termCountJ) {
-    throw new RangeError(`wavefront must have ${termCountJ} coefficients (one per term of the model's Zernike set)`);
-  }
-  for (let i = 0; i < coefficientsNm.length; i++) {
-    if (!Number.isFinite(coefficientsNm[i])) {
-      const k = i % termCountJ;
-      throw new RangeError(
-        `coefficient of Z${model.nollIndices[k]} must be a finite number` + (batch ? ` (wavefront ${(i - k) / termCountJ})` : ""),
-      );
-    }
-  }
-  return coefficientsNm.length / termCountJ;
+  return requireFiniteCoefficients(coefficientsNm, model.nollIndices, batch);
 }
 
 /** Terms per block of the interleaved layout used by {@link evaluateInto}. */

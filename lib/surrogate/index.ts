@@ -22,7 +22,7 @@ export {
 export {
   coefficientsSha256, decodeModel, encodeModel, MODEL_FILE_SIGNATURE, MODEL_FORMAT_VERSION, ModelFileError, roundToStored,
 } from "./modelFile.ts";
-export { sha256Hex } from "./checksum.ts";
+export { bytesToHex, hexToBytes, sha256Hex } from "./checksum.ts";
 export {
   regenerateValidationSet, sampleSetSha256, trainSurrogate, type ExactPropagator, type GeneratingSetSpec, type TrainingPhase, type TrainingRequest,
   type TrainingResult,

@@ -18,6 +18,8 @@ export interface Provenance {
   uploadedSha256: string | null;
   /** Validation set: random directions with total RMS uniform in [0, maxRmsNm] (`randomAmplitudeDesign`). */
   validationSet: { size: number; maxRmsNm: number; seed: number } | null;
+  /** SHA-256 (hex, as `uploadedSha256`) of an uploaded validation set; null when the set was built in. */
+  validationUploadedSha256?: string | null;
   softwareVersion: string;
   /** ISO 8601 time of training, supplied by the caller. */
   createdAt: string;

@@ -2,7 +2,7 @@ import { unzlibSync, zlibSync } from "fflate";
 import { Packr } from "msgpackr";
 import { z } from "zod";
 import { validateSetup } from "../optics/setup.ts";
-import { sha256Hex } from "./checksum.ts";
+import { bytesToHex, hexToBytes, sha256Hex } from "./checksum.ts";
 import type { SurrogateModel } from "./model.ts";
 import { compileTerms } from "./terms.ts";
 
@@ -44,6 +44,7 @@ const headerSchema = z.object({
     seed: z.number().int().nullable(),
     uploadedSha256: z.string().nullable(),
     validationSet: z.object({ size: z.number().int(), maxRmsNm: finite, seed: z.number().int() }).nullable(),
+    validationUploadedSha256: z.string().nullable().optional(),
     softwareVersion: z.string(),
     createdAt: z.string(),
   }),
@@ -227,16 +228,4 @@ export function decodeModel(bytes: Uint8Array): SurrogateModel {
 /** SHA-256 (hex) of a model's coefficients as stored (Float32 little-endian bytes). */
 export function coefficientsSha256(model: SurrogateModel): string {
   return sha256Hex(float32Bytes(model.coefficients));
-}
-
-function bytesToHex(bytes: Uint8Array): string {
-  let hex = "";
-  for (let i = 0; i < bytes.length; i++) hex += bytes[i].toString(16).padStart(2, "0");
-  return hex;
-}
-
-function hexToBytes(hex: string): Uint8Array {
-  const out = new Uint8Array(hex.length / 2);
-  for (let i = 0; i < out.length; i++) out[i] = parseInt(hex.slice(2 * i, 2 * i + 2), 16);
-  return out;
 }

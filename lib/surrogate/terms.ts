@@ -1,3 +1,5 @@
+import { requireNollIndices } from "../optics/zernike.ts";
+
 /**
  * One term of the surrogate polynomial, named by the Noll indices of the Zernike coefficients it multiplies:
  * `[]` is the constant `c0`, `[i]` the linear term `A_i a_i`, `[i, j]` (i <= j) the product term `B_ij a_i a_j`.
@@ -43,18 +45,11 @@ export function fullTermCount(termCountJ: number, order: SurrogateOrder): number
 }
 
 /**
- * Check a list of Noll indices used as the model's variables.
- * @throws {RangeError} "nollIndices must not be empty" / "Noll indices must be integers >= 1" /
- *   "Noll index N appears twice"
+ * Check a list of Noll indices used as the model's variables (the core's one Noll-list check).
+ * @throws {RangeError} as {@link requireNollIndices}, naming the list "nollIndices"
  */
 export function checkNollIndices(nollIndices: readonly number[]): void {
-  if (nollIndices.length === 0) throw new RangeError("nollIndices must not be empty");
-  const seen = new Set<number>();
-  for (const j of nollIndices) {
-    if (!Number.isInteger(j) || j < 1) throw new RangeError("Noll indices must be integers >= 1");
-    if (seen.has(j)) throw new RangeError(`Noll index ${j} appears twice`);
-    seen.add(j);
-  }
+  requireNollIndices(nollIndices, "nollIndices");
 }
 
 /** A term as text: `1`, `Z5`, `Z5*Z7`, used in messages and reports. */

@@ -1,10 +1,10 @@
 import { toNollIndices } from "../optics/zernike.ts";
 import { validateSetup } from "../optics/setup.ts";
+import { requireDefinedTtl } from "../optics/ttlMap.ts";
 import type { OpticalSetup, ZernikeSet } from "../optics/types.ts";
 import { sha256Hex } from "./checksum.ts";
 import {
   axesAndPairsDesign,
-  axesAndPairsStepNm,
   checkSampleSet,
   randomAmplitudeDesign,
   randomDesign,
@@ -22,9 +22,13 @@ import { validityFromSamples } from "./validity.ts";
 
 export type GeneratingSetSpec =
   | ({ design: "random" } & RandomDesignOptions)
-  | { design: "axes-and-pairs"; maxRmsNm: number }
+  /** Step d of the design, nm; every sample lies within total RMS `d sqrt(2)`. */
+  | { design: "axes-and-pairs"; stepNm: number }
   /** Samples computed elsewhere: coefficients in the model's Noll order, with their exact maps. */
   | { design: "uploaded"; set: SampleSet };
+
+/** A seeded validation set propagated exactly, or one computed elsewhere (coefficients in the model's Noll order). */
+export type ValidationSetSpec = RandomDesignOptions | { design: "uploaded"; set: SampleSet };
 
 export interface TrainingRequest {
   setup: OpticalSetup;
@@ -32,21 +36,24 @@ export interface TrainingRequest {
   order: SurrogateOrder;
   generatingSet: GeneratingSetSpec;
   /**
-   * Seeded validation set (random directions, total RMS uniform in [0, maxRmsNm]), propagated exactly;
-   * null trains without residual statistics.
+   * Seeded validation set (random directions, total RMS uniform in [0, maxRmsNm]), propagated exactly, or an
+   * uploaded one; null trains without residual statistics.
    */
-  validationSet: RandomDesignOptions | null;
+  validationSet: ValidationSetSpec | null;
   softwareVersion: string;
   /** ISO 8601 time stamp to record (the caller's clock; the core reads none). */
   createdAt: string;
 }
 
-/** Exact maps for `S x J` coefficients in `nollIndices` order: flat `x`, `y` of `S x M^2` values, pm/nrad. */
+/**
+ * Exact maps for `S x J` coefficients in `nollIndices` order: flat `x`, `y` of `S x M^2` values, pm/nrad, and the
+ * nodes where the TTL is undefined (FlatTtlMaps; training refuses them).
+ */
 export type ExactPropagator = (
   nollIndices: number[],
   coefficientsNm: Float64Array,
   onProgress: (done: number, total: number) => void,
-) => Promise<{ x: Float64Array; y: Float64Array }>;
+) => Promise<{ x: Float64Array; y: Float64Array; undefinedNodes: ArrayLike<number> }>;
 
 export type TrainingPhase = "generating set" | "fit" | "validation set" | "statistics";
 
@@ -64,6 +71,27 @@ export function sampleSetSha256(set: SampleSet): string {
   let offset = 0;
   for (const part of parts) for (let i = 0; i < part.length; i++, offset += 8) view.setFloat64(offset, part[i], true);
   return sha256Hex(bytes);
+}
+
+
+/**
+ * The coefficients of a built-in generating-set design (`S x J`, row-major, nm RMS), exactly as training makes
+ * them: a run split into chunks on several machines regenerates them from the spec and gets the same numbers.
+ * @throws {RangeError} as the design functions
+ */
+export function generatingCoefficients(spec: Exclude<GeneratingSetSpec, { design: "uploaded" }>, termCountJ: number): Float64Array {
+  if (spec.design === "random") return randomDesign(termCountJ, spec);
+  if (spec.design === "axes-and-pairs") return axesAndPairsDesign(termCountJ, spec.stepNm);
+  throw new RangeError(`unknown generating-set design ${JSON.stringify((spec as { design: unknown }).design)}`);
+}
+
+/** The coefficients of a seeded validation set (`S x J`, nm RMS), as training makes them. */
+export function validationCoefficients(spec: RandomDesignOptions, termCountJ: number): Float64Array {
+  return randomAmplitudeDesign(termCountJ, spec);
+}
+
+function isUploaded<T extends object>(spec: T | { design: "uploaded"; set: SampleSet }): spec is { design: "uploaded"; set: SampleSet } {
+  return (spec as { design?: unknown }).design === "uploaded";
 }
 
 /**
@@ -99,7 +127,8 @@ export async function trainSurrogate(
     stepNm: null,
     seed: null,
     uploadedSha256: null,
-    validationSet: request.validationSet ? { ...request.validationSet } : null,
+    validationSet: request.validationSet && !isUploaded(request.validationSet) ? { ...request.validationSet } : null,
+    validationUploadedSha256: null,
     softwareVersion: request.softwareVersion,
     createdAt: request.createdAt,
   };
@@ -108,23 +137,24 @@ export async function trainSurrogate(
     generatingSet = spec.set;
     provenance.uploadedSha256 = sampleSetSha256(spec.set);
   } else {
-    let coefficientsNm: Float64Array;
+    const coefficientsNm = generatingCoefficients(spec, J);
     if (spec.design === "random") {
-      coefficientsNm = randomDesign(J, spec);
       provenance.seed = spec.seed;
-    } else if (spec.design === "axes-and-pairs") {
-      provenance.stepNm = axesAndPairsStepNm(spec.maxRmsNm);
-      coefficientsNm = axesAndPairsDesign(J, provenance.stepNm);
+      provenance.maxRmsNm = spec.maxRmsNm;
     } else {
-      throw new RangeError(`unknown generating-set design ${JSON.stringify((spec as { design: unknown }).design)}`);
+      provenance.stepNm = spec.stepNm;
+      // The pair samples (d, d) are the largest, with total RMS d sqrt(2).
+      provenance.maxRmsNm = spec.stepNm * Math.SQRT2;
     }
-    provenance.maxRmsNm = spec.maxRmsNm;
     const count = coefficientsNm.length / J;
     // Refuse a design that cannot be fitted before spending time on exact maps.
     if (count < compiled.count) {
       throw new RangeError(`generating set has ${count} samples but the model has ${compiled.count} terms; at least ${compiled.count} are needed`);
     }
-    const maps = await propagate(nollIndices, coefficientsNm, (done, total) => onProgress("generating set", done, total));
+    const maps = requireDefinedTtl(
+      { pointsPerAxis: M, ...(await propagate(nollIndices, coefficientsNm, (done, total) => onProgress("generating set", done, total))) },
+      "generating set",
+    );
     generatingSet = { coefficientsNm, x: maps.x, y: maps.y, count, pointsPerAxis: M };
     checkSampleSet(generatingSet, J, M);
   }
@@ -155,9 +185,19 @@ export async function trainSurrogate(
 
   let validationSet: SampleSet | null = null;
   if (request.validationSet) {
-    const coefficientsNm = randomAmplitudeDesign(J, request.validationSet);
-    const maps = await propagate(nollIndices, coefficientsNm, (done, total) => onProgress("validation set", done, total));
-    validationSet = { coefficientsNm, x: maps.x, y: maps.y, count: request.validationSet.size, pointsPerAxis: M };
+    if (isUploaded(request.validationSet)) {
+      checkSampleSet(request.validationSet.set, J, M);
+      validationSet = request.validationSet.set;
+      provenance.validationUploadedSha256 = sampleSetSha256(validationSet);
+    } else {
+      const coefficientsNm = validationCoefficients(request.validationSet, J);
+      const maps = requireDefinedTtl(
+        { pointsPerAxis: M, ...(await propagate(nollIndices, coefficientsNm, (done, total) => onProgress("validation set", done, total))) },
+        "validation set",
+      );
+      validationSet = { coefficientsNm, x: maps.x, y: maps.y, count: request.validationSet.size, pointsPerAxis: M };
+    }
+    const coefficientsNm = validationSet.coefficientsNm;
     onProgress("statistics", 0, 1);
     const predicted = splitAxes(evaluateBatch(model, coefficientsNm), validationSet.count, nodes);
     model.statistics = residualStatistics(validationSet, J, predicted);
@@ -175,7 +215,10 @@ export async function regenerateValidationSet(model: SurrogateModel, propagate: 
   const spec = model.provenance.validationSet;
   if (!spec) return null;
   const coefficientsNm = randomAmplitudeDesign(model.nollIndices.length, spec);
-  const maps = await propagate([...model.nollIndices], coefficientsNm, () => {});
+  const maps = requireDefinedTtl(
+    { pointsPerAxis: model.pointsPerAxis, ...(await propagate([...model.nollIndices], coefficientsNm, () => {})) },
+    "validation set",
+  );
   const set: SampleSet = { coefficientsNm, x: maps.x, y: maps.y, count: spec.size, pointsPerAxis: model.pointsPerAxis };
   checkSampleSet(set, model.nollIndices.length, model.pointsPerAxis);
   return set;

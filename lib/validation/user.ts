@@ -1,5 +1,5 @@
 import { z } from "zod";
-import { ROLES } from "../auth/roles";
+import { ROLES } from "../access/roles";
 
 export const userNameSchema = z
   .string()

@@ -88,7 +88,7 @@ describe("the modeller-only setup check", () => {
     expect(response.headers["content-type"]).toContain("application/problem+json");
     expect(response.body.issues).toEqual(
       expect.arrayContaining([
-        { path: "wavelengthNm", message: "wavelengthNm must be > 0" },
+        { path: "wavelengthNm", message: "wavelengthNm must be a positive finite number" },
         { path: "farField.pointsPerAxis", message: "farField.pointsPerAxis must be an odd integer >= 3" },
       ]),
     );

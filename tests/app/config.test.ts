@@ -1,5 +1,5 @@
 import { describe, expect, it } from "vitest";
-import { ConfigError, parseConfig } from "@/lib/config";
+import { ConfigError, parseConfig, requireAuthSecret } from "@/lib/config";
 
 const SECRET = "x".repeat(32);
 
@@ -32,7 +32,13 @@ describe("configuration", () => {
     expect(message).toMatch(/^Stillpoint configuration is invalid:/);
     expect(message).toContain("DATABASE_PORT");
     expect(message).toContain("DATABASE_NAME");
-    expect(message).toContain("NEXTAUTH_SECRET: is required");
+  });
+
+  it("lets workers run without a session secret but refuses to serve the app without one", () => {
+    const config = parseConfig({});
+    expect(config.authSecret).toBeNull();
+    expect(() => requireAuthSecret(config)).toThrow(/NEXTAUTH_SECRET: is required to serve the app/);
+    expect(requireAuthSecret(parseConfig({ NEXTAUTH_SECRET: SECRET }))).toBe(SECRET);
   });
 
   it("refuses a short session secret", () => {

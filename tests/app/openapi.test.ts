@@ -1,17 +1,21 @@
-import { readdirSync, statSync } from "node:fs";
+import { readdirSync, readFileSync, statSync } from "node:fs";
 import path from "node:path";
 import { describe, expect, it } from "vitest";
 import { GET } from "@/app/api/v1/openapi.json/route";
+import { MAX_POINTS_PER_AXIS, MAX_PUPIL_SAMPLES, MIN_POINTS_PER_AXIS, MIN_PUPIL_SAMPLES } from "@/lib/optics/setup";
 import { REPO_ROOT } from "../helpers/test-database";
 
-/** URL paths of every route handler under app/api/v1, found on disk. */
-function apiRoutes(): string[] {
+/** `METHOD path` of every handler exported by a route file under app/api/v1, found on disk. */
+function apiOperations(): string[] {
   const found: string[] = [];
   const walk = (dir: string, segments: string[]) => {
     for (const entry of readdirSync(dir)) {
       const full = path.join(dir, entry);
       if (statSync(full).isDirectory()) walk(full, [...segments, entry.replace(/^\[(.+)\]$/, "{$1}")]);
-      else if (entry === "route.ts") found.push("/api/v1/" + segments.join("/"));
+      else if (entry === "route.ts") {
+        const source = readFileSync(full, "utf8");
+        for (const [, method] of source.matchAll(/export const (GET|POST|PUT|PATCH|DELETE)\b/g)) found.push(`${method} /api/v1/${segments.join("/")}`);
+      }
     }
   };
   walk(path.join(REPO_ROOT, "app", "api", "v1"), []);
@@ -24,7 +28,11 @@ describe("GET /api/v1/openapi.json", () => {
     expect(response.status).toBe(200);
     const document = await response.json();
     expect(document.openapi).toBe("3.1.0");
-    expect(Object.keys(document.paths).sort()).toEqual(apiRoutes());
+    const described = Object.entries(document.paths as Record<string, Record<string, unknown>>).flatMap(([p, methods]) =>
+      Object.keys(methods).map((method) => `${method.toUpperCase()} ${p}`),
+    );
+    expect(described.sort()).toEqual(apiOperations());
+    expect(apiOperations().length).toBeGreaterThanOrEqual(20);
   });
 
   it("describes the setup with the fields and limits the handler enforces", async () => {
@@ -34,6 +42,12 @@ describe("GET /api/v1/openapi.json", () => {
       expect.arrayContaining(["wavelengthNm", "apertureDiameterM", "beamRadiusM", "distanceM", "farField", "pupilSamples"]),
     );
     expect(setup.additionalProperties).toBe(false);
-    expect(setup.properties.pupilSamples).toMatchObject({ type: "integer", minimum: 16, maximum: 2048 });
+    // The limits are the numerical core's own (lib/optics/setup.ts), not repeated here.
+    expect(setup.properties.pupilSamples).toMatchObject({
+      type: "integer", minimum: MIN_PUPIL_SAMPLES, maximum: MAX_PUPIL_SAMPLES,
+    });
+    expect(setup.properties.farField.properties.pointsPerAxis).toMatchObject({
+      type: "integer", minimum: MIN_POINTS_PER_AXIS, maximum: MAX_POINTS_PER_AXIS,
+    });
   });
 });

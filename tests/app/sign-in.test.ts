@@ -32,7 +32,7 @@ describe("sign-in with the demo accounts", () => {
     const text = htmlText(home.text);
     expect(text).toContain(account.name);
     for (const role of account.roles) expect(text).toContain(`>${role}</li>`);
-    expect(text).toContain("No models in the catalogue yet.");
+    expect(text).toContain("velora-transmit"); // the seeded demo model
     expect(text).toContain("decisions about flight hardware rest on the exact calculation");
   });
 

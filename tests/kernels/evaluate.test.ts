@@ -1,6 +1,6 @@
 import { describe, expect, it } from "vitest";
 import { setKernelsEnabled } from "../../lib/kernels/instance.ts";
-import { BatchEvaluator } from "../../lib/surrogate/batchThreads.ts";
+import { createComputePool } from "../../lib/parallel/index.ts";
 import { evaluateBatchPeaksInto } from "../../lib/surrogate/evaluate.ts";
 import {
   compileTerms, evaluateBatch, evaluateBatchInto, evaluateInto, evaluateMap, featureMatrix, randomDesign, roundToStored,
@@ -116,11 +116,11 @@ describe("surrogate evaluation through the kernels", () => {
 
   it("gives bit-for-bit the single-thread answer on worker threads, each with its own kernel instance", async () => {
     const wavefronts = randomDesign(J, { size: 23, maxRmsNm: 30, seed: 23 });
-    const evaluator = new BatchEvaluator(storedModel, 2);
+    const pool = createComputePool({ threads: 2 });
     try {
-      expect(Array.from(await evaluator.evaluate(wavefronts))).toEqual(Array.from(evaluateBatch(storedModel, wavefronts)));
+      expect(Array.from(await pool.evaluateBatch(storedModel, wavefronts))).toEqual(Array.from(evaluateBatch(storedModel, wavefronts)));
     } finally {
-      await evaluator.close();
+      await pool.close();
     }
   });
 

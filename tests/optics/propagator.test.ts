@@ -246,6 +246,6 @@ describe("TtlPropagator input checks", () => {
     const propagator = new TtlPropagator(DEMO, [4, 5]);
     expect(() => propagator.ttl([1, Number.NaN])).toThrow(new RangeError("coefficient of Noll term 5 must be a finite number"));
     expect(() => propagator.ttl([1, Number.POSITIVE_INFINITY])).toThrow(RangeError);
-    expect(() => propagator.ttl([1])).toThrow(new RangeError("expected 2 coefficients, got 1"));
+    expect(() => propagator.ttl([1])).toThrow(new RangeError("expected 2 coefficients (one per term), got 1"));
   });
 });

@@ -17,7 +17,7 @@ describe("wavefront coefficients", () => {
 
   it("rejects bad keys, values and terms outside the set with exact messages", () => {
     expect(() => nollCoefficients({ ordering: "noll", coefficientsNm: { "4": Number.NaN } })).toThrow(
-      new RangeError("coefficient of noll term 4 must be a finite number"),
+      new RangeError("coefficient of Noll term 4 must be a finite number"),
     );
     expect(() => nollCoefficients({ ordering: "noll", coefficientsNm: { x: 1 } })).toThrow(RangeError);
     expect(() => nollCoefficients({ ordering: "noll", coefficientsNm: { "0": 1 } })).toThrow(

@@ -96,7 +96,7 @@ describe("Noll and ANSI indices", () => {
       new TypeError('Zernike ordering must be "noll" or "ansi", got "fringe"'),
     );
     expect(() => toNollIndices({ ordering: "noll", indices: [] })).toThrow("Zernike set must list at least one term");
-    expect(() => toNollIndices({ ordering: "ansi", indices: [4, 4] })).toThrow("Zernike set lists a term more than once");
+    expect(() => toNollIndices({ ordering: "ansi", indices: [4, 4] })).toThrow("Zernike set lists Noll term 4 more than once");
     expect(toNollIndices({ ordering: "ansi", indices: [3, 4, 5] })).toEqual([5, 4, 6]);
   });
 });

@@ -18,8 +18,10 @@ function maxRelativeError(actual: Float64Array, expected: Float64Array): number 
 
 describe("fitCoefficients", () => {
   it("recovers a known second-order polynomial exactly from a random design", () => {
-    // Source: construction. Maps made as Y = F C from chosen C are fitted exactly by any full-rank design;
-    // 1e-10 relative allows for rounding in a QR of condition ~1e2 (Golub and Van Loan, section 5.3.8).
+    // Source: a known polynomial. The maps are the chosen C evaluated term by term from the definition
+    // (helpers.ts synthesizeSet, not the product's feature code); any full-rank design fits them exactly, so the
+    // fit must return C itself. 1e-10 relative allows for rounding in a QR of condition ~1e2 (Golub and
+    // Van Loan, Matrix Computations, section 5.3.8).
     const terms = secondOrderTerms(noll);
     const truth = chosenCoefficients(terms.length * 2 * nodes, 0.01);
     const design = randomDesign(noll.length, { size: 60, maxRmsNm: 30, seed: 5 });

@@ -1,6 +1,4 @@
-import {
-  compileTerms, featureMatrix, validityFromSamples, type SampleSet, type SurrogateModel, type Term,
-} from "../../lib/surrogate/index.ts";
+import { validityFromSamples, type SampleSet, type SurrogateModel, type Term } from "../../lib/surrogate/index.ts";
 
 /** A small setup for synthetic models (5 x 5 nodes over +-50 nrad). */
 export const smallSetup = {
@@ -17,7 +15,12 @@ export function chosenCoefficients(count: number, scale = 1): Float64Array {
   return Float64Array.from({ length: count }, (_, i) => scale * Math.sin(1.7 * i + 0.3) * (1 + (i % 7) / 3));
 }
 
-/** Maps of a known polynomial: `Y = F C` with F the features of `coefficientsNm`, split into x and y per sample. */
+/**
+ * Maps of a known polynomial, evaluated straight from its definition (PHYSICS.md section 5):
+ * `c(theta; a) = sum_t C_t(theta) prod_{j in term t} a_j`, the product over the Noll indices a term names
+ * (none for `c0`, one for `A_i`, two for `B_ij`). Independent of the product's feature code (`featureMatrix`),
+ * so a fit or an evaluation that mixes up terms cannot agree with it by construction.
+ */
 export function synthesizeSet(
   terms: readonly Term[],
   nollIndices: number[],
@@ -25,18 +28,18 @@ export function synthesizeSet(
   coefficientsNm: Float64Array,
   pointsPerAxis: number,
 ): SampleSet {
-  const compiled = compileTerms(terms, nollIndices);
   const J = nollIndices.length;
-  const features = featureMatrix(compiled, coefficientsNm, J);
   const count = coefficientsNm.length / J;
   const nodes = pointsPerAxis * pointsPerAxis;
   const P = 2 * nodes;
   const x = new Float64Array(count * nodes);
   const y = new Float64Array(count * nodes);
   for (let s = 0; s < count; s++) {
+    const a = (noll: number) => coefficientsNm[s * J + nollIndices.indexOf(noll)];
+    const monomials = terms.map((term) => term.reduce((product, noll) => product * a(noll), 1));
     for (let p = 0; p < P; p++) {
       let v = 0;
-      for (let t = 0; t < compiled.count; t++) v += features[s * compiled.count + t] * coefficients[t * P + p];
+      for (let t = 0; t < terms.length; t++) v += monomials[t] * coefficients[t * P + p];
       if (p < nodes) x[s * nodes + p] = v;
       else y[s * nodes + p - nodes] = v;
     }

@@ -16,18 +16,6 @@ function expectRejected(damaged: Uint8Array, message: string | RegExp) {
   expect(() => decodeModel(damaged)).toThrow(message);
 }
 
-describe("sha256Hex", () => {
-  it("matches the FIPS 180-4 example digests", () => {
-    // Source: NIST FIPS 180-4 / CSRC example values for SHA-256 ("abc", the empty message, the 448-bit message).
-    const text = (s: string) => new TextEncoder().encode(s);
-    expect(sha256Hex(text("abc"))).toBe("ba7816bf8f01cfea414140de5dae2223b00361a396177a9cb410ff61f20015ad");
-    expect(sha256Hex(text(""))).toBe("e3b0c44298fc1c149afbf4c8996fb92427ae41e4649b934ca495991b7852b855");
-    expect(sha256Hex(text("abcdbcdecdefdefgefghfghighijhijkijkljklmklmnlmnomnopnopq"))).toBe(
-      "248d6a61d20638b8e5c026930c3e6039a33ce45964ff2167f6ecedd419db06c1",
-    );
-  });
-});
-
 describe(".stpm model file", () => {
   it("round-trips every field and the stored coefficients bit for bit", () => {
     const back = decodeModel(bytes);

@@ -1,0 +1,23 @@
+"use server";
+
+import { revalidatePath } from "next/cache";
+import { z } from "zod";
+import type { ActionResult } from "@/components/forms/action-result";
+import { actionActor, actionFailure } from "@/components/server/action";
+import { submitVersion } from "@/lib/db/versions";
+import { slugSchema } from "@/lib/validation/registry";
+
+const versionSchema = z.number({ error: "version must be an integer" }).int().positive();
+
+/** `draft` -> `in-review`, by the modeller who made the version (submitVersion checks the author and the state). */
+export async function submitForReviewAction(slug: unknown, version: unknown): Promise<ActionResult<{ state: string }>> {
+  try {
+    const model = slugSchema.parse(slug);
+    const actor = await actionActor("train", model);
+    const detail = await submitVersion(actor, model, versionSchema.parse(version));
+    revalidatePath(`/models/${model}`, "layout");
+    return { ok: true, data: { state: detail.state } };
+  } catch (error) {
+    return actionFailure(error);
+  }
+}

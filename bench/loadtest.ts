@@ -1,0 +1,186 @@
+// npm run loadtest: the evaluate API under load, against the production build with real MariaDB and Redis and token
+// authentication, on the demo released model (velora-transmit v2: 595 terms, 25 x 25 nodes). It starts what it
+// needs (the test MariaDB and Redis instances, a throw-away database seeded with the demo, `next start`), prints a
+// table of figures against the targets, and stops everything it started. Figures, not assertions: timings on a
+// shared 2-core machine vary by tens of per cent from one minute to the next.
+import { spawn, spawnSync, type ChildProcess } from "node:child_process";
+import { createServer } from "node:net";
+import { fileURLToPath } from "node:url";
+import autocannon from "autocannon";
+
+const root = fileURLToPath(new URL("..", import.meta.url));
+const dbPort = process.env.TEST_DATABASE_PORT ?? "3317";
+const redisPort = process.env.TEST_REDIS_PORT ?? "6390";
+const database = `stillpoint_loadtest_r${process.pid}`;
+const env: NodeJS.ProcessEnv = {
+  ...process.env,
+  DATABASE_PORT: dbPort,
+  DATABASE_NAME: database,
+  REDIS_PORT: redisPort,
+  REDIS_URL: `redis://127.0.0.1:${redisPort}`,
+  QUEUE_PREFIX: `stillpoint-loadtest-r${process.pid}`,
+  NEXTAUTH_SECRET: "loadtest-secret-".padEnd(40, "x"),
+  AUTH_TRUST_HOST: "true",
+  NEXT_TELEMETRY_DISABLED: "1",
+  RATE_LIMIT_PER_MINUTE: "10000000",
+};
+delete env.NEXTAUTH_URL;
+
+function run(command: string, args: string[], what: string): void {
+  const result = spawnSync(command, args, { cwd: root, env, stdio: ["ignore", "ignore", "inherit"] });
+  if (result.status !== 0) throw new Error(`${what} failed (exit ${result.status})`);
+}
+
+async function freePort(): Promise<number> {
+  return new Promise((resolve) => {
+    const server = createServer();
+    server.listen(0, "127.0.0.1", () => {
+      const { port } = server.address() as { port: number };
+      server.close(() => resolve(port));
+    });
+  });
+}
+
+let server: ChildProcess | null = null;
+async function startServer(port: number): Promise<number> {
+  const began = performance.now();
+  server = spawn(`${root}/node_modules/.bin/next`, ["start", "-H", "127.0.0.1", "-p", String(port)], { cwd: root, env, stdio: ["ignore", "ignore", "inherit"] });
+  for (;;) {
+    try {
+      const response = await fetch(`http://127.0.0.1:${port}/api/v1/openapi.json`);
+      if (response.ok) return performance.now() - began;
+    } catch {
+      // not listening yet
+    }
+    await new Promise((resolve) => setTimeout(resolve, 50));
+  }
+}
+async function stopServer(): Promise<void> {
+  if (!server || server.exitCode !== null) return;
+  const done = new Promise((resolve) => server!.once("exit", resolve));
+  server.kill("SIGTERM");
+  await done;
+}
+
+function cleanup(): void {
+  try {
+    spawnSync("mariadb", ["--no-defaults", `--socket=${root}/.data/mariadb-test/mariadb.sock`, "-uroot", "-e", `DROP DATABASE IF EXISTS \`${database}\``]);
+  } catch {
+    // best effort
+  }
+}
+
+const rows: string[][] = [];
+const fmt = (v: number, digits = 3) => Number(v.toPrecision(digits)).toString();
+function report(name: string, figure: string, target: string, met: boolean): void {
+  rows.push([name, figure, target, met ? "met" : "NOT met"]);
+  console.error(`[loadtest] ${name}: ${figure} (target ${target}) ${met ? "met" : "NOT met"}`);
+}
+
+async function main(): Promise<void> {
+  console.error("[loadtest] starting the test MariaDB and Redis, a fresh database with the demo model (about a minute)");
+  run("bash", ["db/mariadb.sh", "start", "test"], "starting MariaDB");
+  run("bash", ["db/redis.sh", "start", "test"], "starting Redis");
+  run("mariadb", ["--no-defaults", `--socket=${root}/.data/mariadb-test/mariadb.sock`, "-uroot", "-e", `CREATE DATABASE \`${database}\` CHARACTER SET utf8mb4 COLLATE utf8mb4_unicode_ci; GRANT ALL PRIVILEGES ON \`${database}%\`.* TO 'app'@'127.0.0.1';`], "creating the database");
+  run("node", ["--import", "tsx", "node_modules/knex/bin/cli.js", "--knexfile", "knexfile.ts", "migrate:latest"], "migrating");
+  run("node", ["--import", "tsx", "node_modules/knex/bin/cli.js", "--knexfile", "knexfile.ts", "seed:run"], "seeding");
+  run("bash", ["-c", "source scripts/common.sh && build_if_needed"], "next build");
+
+  // A token of the demo viewer with the evaluate scope, made through the registry's own function.
+  Object.assign(process.env, env);
+  const { sessionActor } = await import("../lib/access/actor.ts");
+  const { db, closeDb } = await import("../lib/db/knex.ts");
+  const { getUser } = await import("../lib/db/users.ts");
+  const { createToken } = await import("../lib/db/tokens.ts");
+  const row = await db()("users").where({ email: "viewer@velora.test" }).first();
+  const viewer = sessionActor((await getUser(row.id))!);
+  const { token } = await createToken(viewer, { name: "loadtest", scopes: ["evaluate", "read"], expiresAt: null, models: null });
+  await closeDb();
+
+  const port = await freePort();
+  const base = `http://127.0.0.1:${port}`;
+  const url = `${base}/api/v1/models/velora-transmit/versions/2/evaluate`;
+  const headers = { authorization: `Bearer ${token}`, "content-type": "application/json" };
+  const wavefront = (i: number) => ({ ordering: "noll", coefficientsNm: { "4": 3 + (i % 5), "5": -2, "6": 1.5, "11": (i % 3) - 1, "22": 0.5 } });
+  const single = JSON.stringify({ wavefronts: [wavefront(1)], output: "offsets", offsetsNrad: [[-12.5, 30]] });
+  const full = JSON.stringify({ wavefronts: [wavefront(2)], output: "map" });
+  const batch1000 = JSON.stringify({ wavefronts: Array.from({ length: 1000 }, (_, i) => wavefront(i)), output: "summary" });
+  const batch10000 = JSON.stringify({ wavefronts: Array.from({ length: 10000 }, (_, i) => wavefront(i)), output: "summary" });
+
+  const startupMs = await startServer(port);
+  console.error(`[loadtest] next start answering after ${fmt(startupMs)} ms`);
+  const t0 = performance.now();
+  const first = await fetch(url, { method: "POST", headers, body: single });
+  await first.arrayBuffer();
+  const firstMs = performance.now() - t0;
+  if (first.status !== 200) throw new Error(`first evaluation answered ${first.status}`);
+  report("first request after a restart", `${fmt(firstMs)} ms`, "< 300 ms", firstMs < 300);
+
+  const cannon = (body: string, connections: number, seconds: number) =>
+    autocannon({ url, method: "POST", headers, body, connections, duration: seconds, pipelining: 1 });
+  await cannon(single, 10, 2); // warm-up
+  const offsets = await cannon(single, 50, 10);
+  if (offsets.non2xx > 0) console.error(`[loadtest] ${offsets.non2xx} non-2xx answers in the single-offset run`);
+  report("single offset, 50 connections: throughput", `${fmt(offsets.requests.average)} req/s`, ">= 1000 req/s", offsets.requests.average >= 1000);
+  report("single offset, 50 connections: p99 latency", `${fmt(offsets.latency.p99)} ms`, "< 25 ms", offsets.latency.p99 < 25);
+
+  const maps = await cannon(full, 1, 5);
+  report("full map (595 terms, 25 x 25): p50 latency", `${fmt(maps.latency.p50)} ms`, "< 10 ms", maps.latency.p50 < 10);
+
+  const times: number[] = [];
+  for (let i = 0; i < 5; i++) {
+    const t = performance.now();
+    const response = await fetch(url, { method: "POST", headers, body: batch1000 });
+    await response.arrayBuffer();
+    times.push(performance.now() - t);
+  }
+  const best1000 = Math.min(...times);
+  report("1,000 wavefronts as summary", `${fmt(best1000)} ms best of 5 (median ${fmt(times.sort((a, b) => a - b)[2])})`, "< 1000 ms", best1000 < 1000);
+
+  // Single-offset requests, one at a time, while a 10,000-wavefront request runs beside them.
+  const alone: number[] = [];
+  for (let i = 0; i < 50; i++) {
+    const t = performance.now();
+    await (await fetch(url, { method: "POST", headers, body: single })).arrayBuffer();
+    alone.push(performance.now() - t);
+  }
+  const beside: number[] = [];
+  const bigStart = performance.now();
+  let bigMs = 0;
+  const big = fetch(url, { method: "POST", headers, body: batch10000 }).then(async (r) => {
+    await r.arrayBuffer();
+    bigMs = performance.now() - bigStart;
+  });
+  let bigDone = false;
+  void big.then(() => (bigDone = true));
+  while (!bigDone) {
+    const t = performance.now();
+    await (await fetch(url, { method: "POST", headers, body: single })).arrayBuffer();
+    beside.push(performance.now() - t);
+  }
+  await big;
+  const median = (values: number[]) => [...values].sort((a, b) => a - b)[Math.floor(values.length / 2)];
+  const worstBeside = Math.max(...beside);
+  report(
+    "single offset beside a 10,000-wavefront request: worst added delay",
+    `${fmt(worstBeside - median(alone))} ms (worst ${fmt(worstBeside)} ms, ${beside.length} requests during the ${fmt(bigMs)} ms batch; alone median ${fmt(median(alone))} ms)`,
+    "<= 50 ms",
+    worstBeside - median(alone) <= 50,
+  );
+
+  await stopServer();
+  const width = [0, 1, 2, 3].map((c) => Math.max(...rows.map((r) => r[c].length), ["figure", "value", "target", "result"][c].length));
+  const line = (r: string[]) => r.map((cell, c) => cell.padEnd(width[c])).join("  ");
+  console.log(line(["figure", "value", "target", "result"]));
+  for (const r of rows) console.log(line(r));
+}
+
+main()
+  .catch((error) => {
+    console.error(`[loadtest] ${(error as Error).message}`);
+    process.exitCode = 1;
+  })
+  .finally(async () => {
+    await stopServer();
+    cleanup();
+  });

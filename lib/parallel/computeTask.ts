@@ -1,0 +1,63 @@
+import type { SurrogateModel } from "../surrogate/model.ts";
+import { evaluateBatchInto } from "../surrogate/evaluate.ts";
+import { runTtlTask, type TtlTask } from "./ttlTask.ts";
+
+/**
+ * A model as the pool hands it to its workers: the fields evaluation reads, and the coefficients in shared
+ * memory (put there once per model by the pool, never copied per call). `key` names the model within a pool.
+ */
+export interface SharedModel {
+  key: number;
+  header: Pick<SurrogateModel, "terms" | "nollIndices" | "pointsPerAxis">;
+  coefficients: SharedArrayBuffer;
+}
+
+/** Rows `[rowStart, rowEnd)` of a batch; input `S x J` and output `S x 2 M^2` live in shared memory. */
+export interface EvaluateTask {
+  model: SharedModel;
+  input: SharedArrayBuffer;
+  inputLength: number;
+  output: SharedArrayBuffer;
+  outputLength: number;
+  rowStart: number;
+  rowEnd: number;
+}
+
+export type ComputeTask = ({ kind: "ttl" } & TtlTask) | ({ kind: "evaluate" } & EvaluateTask);
+
+/** Models seen by this thread, most recently used last; bounded so that a long-lived worker does not grow. */
+const models = new Map<number, SurrogateModel>();
+const MODELS_KEPT = 16;
+
+function modelFor(shared: SharedModel): SurrogateModel {
+  let model = models.get(shared.key);
+  if (model) {
+    models.delete(shared.key);
+  } else {
+    // Same object on every call, so the evaluation's per-model caches (compiled terms, packed columns) stay warm.
+    model = { ...shared.header, coefficients: new Float64Array(shared.coefficients) } as SurrogateModel;
+    if (models.size >= MODELS_KEPT) models.delete(models.keys().next().value!);
+  }
+  models.set(shared.key, model);
+  return model;
+}
+
+/**
+ * Run one task of the compute pool on this thread. Exact TTL: returns the x maps, the y maps and then the
+ * task's undefined node indices (exact small integers) in one buffer. Batched evaluation: writes its rows into
+ * the shared output and returns null.
+ */
+export function runComputeTask(task: ComputeTask): Float64Array | null {
+  if (task.kind === "ttl") {
+    const { x, y, undefinedNodes } = runTtlTask(task);
+    const all = new Float64Array(x.length + y.length + undefinedNodes.length);
+    all.set(x);
+    all.set(y, x.length);
+    all.set(undefinedNodes, x.length + y.length);
+    return all;
+  }
+  const input = new Float64Array(task.input, 0, task.inputLength);
+  const output = new Float64Array(task.output, 0, task.outputLength);
+  evaluateBatchInto(modelFor(task.model), input, output, task.rowStart, task.rowEnd);
+  return null;
+}

@@ -1,0 +1,233 @@
+import { assertCan, type Actor } from "../access/actor.ts";
+import { countEvaluation } from "../db/tokens.ts";
+import { evaluatesVersionState, evaluationTarget, loadSurrogateById, type EvaluationTarget } from "../db/versions.ts";
+import { ForbiddenError, GoneError, NotFoundError, OutsideValidityRangeError, UnprocessableError } from "../errors.ts";
+import { thetaGridNrad } from "../optics/setup.ts";
+import { wavefrontToVector } from "../optics/wavefront.ts";
+import type { Wavefront } from "../optics/types.ts";
+import type { ComputePool } from "../parallel/computePool.ts";
+import { checkFinite, evaluateInto } from "../surrogate/evaluate.ts";
+import { interpolateMap } from "../surrogate/interpolate.ts";
+import { SURROGATE_NOTICE, type SurrogateModel } from "../surrogate/model.ts";
+import { validityWarnings } from "../surrogate/validity.ts";
+import type { EvaluateBody } from "../validation/evaluate.ts";
+import { ModelCache } from "./modelCache.ts";
+
+/** Decoded models kept by the web server: 512 MB holds about 80 full demo models (6.2 MB each). */
+const holder = globalThis as typeof globalThis & { __stillpointModelCache?: ModelCache };
+export function modelCache(): ModelCache {
+  holder.__stillpointModelCache ??= new ModelCache(512 * 1024 * 1024);
+  return holder.__stillpointModelCache;
+}
+
+/** Batches at least this large go to the worker pool; smaller ones are cheaper on the calling thread. */
+export const POOL_BATCH_THRESHOLD = 32;
+/** Wavefronts summarised between two yields to the event loop. */
+const SLICE = 256;
+
+export interface EvaluationResult {
+  ttlXPmPerNrad?: number[][];
+  ttlYPmPerNrad?: number[][];
+  offsets?: { thetaXNrad: number; thetaYNrad: number; ttlXPmPerNrad: number; ttlYPmPerNrad: number }[];
+  peakAbsTtlPmPerNrad: number;
+  peakAt: { thetaXNrad: number; thetaYNrad: number; axis: "x" | "y" };
+  peakLengthNoisePm?: number;
+  validity: { inRange: boolean; warnings: string[] };
+}
+
+export interface EvaluationAnswer {
+  head: { model: string; version: number; state: string; coefficientsSha256: string; thetaNrad: number[] };
+  results: EvaluationResult[];
+  notice: string;
+  /** Deprecation, Sunset and Link for a retired version before its sunset. */
+  headers: Record<string, string>;
+}
+
+/** RFC 9745 Deprecation, RFC 8594 Sunset and the successor link of a retired version. */
+export function retirementHeaders(target: EvaluationTarget): Record<string, string> {
+  if (target.state !== "retired" || !target.retiredAt || !target.sunsetAt) return {};
+  const headers: Record<string, string> = {
+    deprecation: `@${Math.floor(Date.parse(target.retiredAt) / 1000)}`,
+    sunset: new Date(target.sunsetAt).toUTCString(),
+  };
+  if (target.successorVersion !== null) headers.link = `</api/v1/models/${target.model}/versions/${target.successorVersion}>; rel="successor-version"`;
+  return headers;
+}
+
+/**
+ * The version an actor may evaluate: released ones, retired ones until their sunset (410 after), and drafts and
+ * versions in review only for signed-in modellers and reviewers.
+ */
+export async function evaluableTarget(actor: Actor, slug: string, version: number, now: Date): Promise<EvaluationTarget> {
+  assertCan(actor, "evaluate", slug);
+  const target = await evaluationTarget(slug, version);
+  if (!target) throw new NotFoundError(`Model "${slug}" has no version ${version}.`);
+  if (!evaluatesVersionState(actor, target.state)) {
+    throw new ForbiddenError(
+      `Version ${version} is ${target.state}: tokens evaluate released and retired versions; drafts and versions in review only signed-in modellers and reviewers.`,
+    );
+  }
+  if (target.state === "retired" && target.sunsetAt && Date.parse(target.sunsetAt) <= now.getTime()) {
+    throw new GoneError(
+      `Version ${version} of "${slug}" was retired and its sunset (${target.sunsetAt}) has passed.` +
+        (target.successorVersion !== null ? ` Its successor is version ${target.successorVersion}.` : ""),
+    );
+  }
+  return target;
+}
+
+export async function surrogateFor(target: EvaluationTarget): Promise<SurrogateModel> {
+  return modelCache().get(`${target.versionId}:${target.coefficientsSha256}`, () => loadSurrogateById(target.versionId));
+}
+
+function nested(flat: Float64Array, offset: number, M: number): number[][] {
+  const rows: number[][] = new Array(M);
+  for (let iy = 0; iy < M; iy++) rows[iy] = Array.from(flat.subarray(offset + iy * M, offset + (iy + 1) * M));
+  return rows;
+}
+
+const yieldToLoop = () => new Promise<void>((resolve) => setImmediate(resolve));
+
+/**
+ * Evaluate wavefronts against a pinned version (API.md "Evaluate"): full maps, bicubic values at DC offsets, or the
+ * peak only, with the length noise of a pointing jitter and the validity block of each wavefront. Large batches run on
+ * the worker pool, and the summaries are made in slices, so the event loop stays free for other requests.
+ * @throws {UnprocessableError} naming each wavefront with a term outside the model's set, each offset outside the map;
+ *   {OutsideValidityRangeError} with `strict` for a wavefront outside the validity range
+ */
+export async function evaluateWavefronts(
+  actor: Actor,
+  slug: string,
+  version: number,
+  body: EvaluateBody,
+  options: { now?: Date; pool?: ComputePool | (() => ComputePool) | null } = {},
+): Promise<EvaluationAnswer> {
+  const now = options.now ?? new Date();
+  const target = await evaluableTarget(actor, slug, version, now);
+  const model = await surrogateFor(target);
+  const M = model.pointsPerAxis;
+  const nodes = M * M;
+  const J = model.nollIndices.length;
+  const S = body.wavefronts.length;
+  const theta = thetaGridNrad(model.setup.farField);
+  const h = model.setup.farField.halfAngleNrad;
+
+  const issues: { path: string; message: string }[] = [];
+  const coefficients = new Float64Array(S * J);
+  body.wavefronts.forEach((wavefront: Wavefront, i) => {
+    try {
+      coefficients.set(wavefrontToVector(wavefront, model.nollIndices), i * J);
+    } catch (error) {
+      issues.push({ path: `wavefronts.${i}.coefficientsNm`, message: (error as Error).message });
+    }
+  });
+  body.offsetsNrad?.forEach(([tx, ty], k) => {
+    if (Math.abs(tx) > h || Math.abs(ty) > h) issues.push({ path: `offsetsNrad.${k}`, message: `offset (${tx}, ${ty}) nrad is outside the map (|theta| <= ${h} nrad)` });
+  });
+  if (issues.length > 0) throw new UnprocessableError("Some wavefronts or offsets cannot be evaluated on this version; see issues.", issues.slice(0, 100));
+
+  const warnings: string[][] = new Array(S);
+  for (let i = 0; i < S; i++) warnings[i] = validityWarnings(model.validity, coefficients.subarray(i * J, (i + 1) * J));
+  if (body.strict) {
+    const outside = warnings.map((w, i) => ({ path: `wavefronts.${i}`, message: w.join("; ") })).filter((issue) => issue.message !== "");
+    if (outside.length > 0) {
+      throw new OutsideValidityRangeError(`${outside.length} of ${S} wavefronts lie outside the validity range of version ${version} (strict).`, outside.slice(0, 100));
+    }
+  }
+
+  // Maps of every wavefront: row-major S x [c_x map, c_y map].
+  let maps: Float64Array;
+  if (options.pool && S >= POOL_BATCH_THRESHOLD) {
+    // A getter starts the pool only when a batch first needs it.
+    const pool = typeof options.pool === "function" ? options.pool() : options.pool;
+    maps = await pool.evaluateBatch(model, coefficients);
+  } else {
+    maps = new Float64Array(S * 2 * nodes);
+    for (let i = 0; i < S; i++) evaluateInto(model, coefficients.subarray(i * J, (i + 1) * J), maps.subarray(i * 2 * nodes, (i + 1) * 2 * nodes));
+    checkFinite(maps);
+  }
+
+  const results: EvaluationResult[] = new Array(S);
+  const jitter = body.jitterNrad;
+  for (let start = 0; start < S; start += SLICE) {
+    if (start > 0) await yieldToLoop();
+    for (let i = start; i < Math.min(S, start + SLICE); i++) {
+      const base = i * 2 * nodes;
+      let peak = -1;
+      let peakNode = 0;
+      let peakAxis: "x" | "y" = "x";
+      let noise = 0;
+      for (let n = 0; n < nodes; n++) {
+        const cx = maps[base + n];
+        const cy = maps[base + nodes + n];
+        if (Math.abs(cx) > peak) {
+          peak = Math.abs(cx);
+          peakNode = n;
+          peakAxis = "x";
+        }
+        if (Math.abs(cy) > peak) {
+          peak = Math.abs(cy);
+          peakNode = n;
+          peakAxis = "y";
+        }
+        const magnitude = cx * cx + cy * cy;
+        if (magnitude > noise) noise = magnitude;
+      }
+      const result: EvaluationResult = {
+        peakAbsTtlPmPerNrad: peak,
+        peakAt: { thetaXNrad: theta[peakNode % M], thetaYNrad: theta[Math.floor(peakNode / M)], axis: peakAxis },
+        validity: { inRange: warnings[i].length === 0, warnings: warnings[i] },
+      };
+      if (jitter !== undefined) result.peakLengthNoisePm = jitter * Math.sqrt(noise);
+      if (body.output === "map") {
+        result.ttlXPmPerNrad = nested(maps, base, M);
+        result.ttlYPmPerNrad = nested(maps, base + nodes, M);
+      } else if (body.output === "offsets") {
+        const x = maps.subarray(base, base + nodes);
+        const y = maps.subarray(base + nodes, base + 2 * nodes);
+        result.offsets = body.offsetsNrad!.map(([tx, ty]) => ({
+          thetaXNrad: tx,
+          thetaYNrad: ty,
+          ttlXPmPerNrad: interpolateMap(x, h, M, tx, ty),
+          ttlYPmPerNrad: interpolateMap(y, h, M, tx, ty),
+        }));
+      }
+      results[i] = result;
+    }
+  }
+  if (actor.tokenId !== null) countEvaluation(actor.tokenId, target.versionId, S, now);
+  return {
+    head: { model: slug, version: target.version, state: target.state, coefficientsSha256: target.coefficientsSha256, thetaNrad: Array.from(theta) },
+    results,
+    notice: SURROGATE_NOTICE,
+    headers: retirementHeaders(target),
+  };
+}
+
+/**
+ * The answer as JSON, written in pieces with a yield between them: a 10,000-map answer is hundreds of MB of text,
+ * which one `JSON.stringify` would build in one blocking go.
+ */
+export function answerStream(answer: EvaluationAnswer): ReadableStream<Uint8Array> {
+  const encoder = new TextEncoder();
+  const opening = JSON.stringify(answer.head).slice(0, -1) + ',"results":[';
+  let index = 0;
+  return new ReadableStream<Uint8Array>({
+    start(controller) {
+      controller.enqueue(encoder.encode(opening));
+    },
+    async pull(controller) {
+      if (index >= answer.results.length) {
+        controller.enqueue(encoder.encode(`],"notice":${JSON.stringify(answer.notice)}}`));
+        controller.close();
+        return;
+      }
+      const end = Math.min(answer.results.length, index + 64);
+      let text = "";
+      for (let i = index; i < end; i++) text += (i > 0 ? "," : "") + JSON.stringify(answer.results[i]);
+      index = end;
+      controller.enqueue(encoder.encode(text));
+      if (index < answer.results.length) await yieldToLoop();
+    },
+  });
+}
