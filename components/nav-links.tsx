@@ -9,9 +9,14 @@ export function NavLinks({ items }: { items: { href: string; label: string }[] }
     <nav aria-label="Workspace">
       <ul className="flex gap-1">
         {items.map((item) => {
-          // Models, their versions and runs belong to the catalogue.
+          // Models, their versions and runs belong to the catalogue; a version's playground to the playground.
+          const playground = pathname.endsWith("/playground");
           const current =
-            item.href === "/" ? pathname === "/" || pathname.startsWith("/models") || pathname.startsWith("/runs") : pathname.startsWith(item.href);
+            item.href === "/"
+              ? !playground && (pathname === "/" || pathname.startsWith("/models") || pathname.startsWith("/runs"))
+              : item.href === "/playground"
+                ? playground
+                : pathname.startsWith(item.href);
           return (
             <li key={item.href}>
               <Link

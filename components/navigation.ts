@@ -11,6 +11,8 @@ export interface NavItem {
 export const NAV_ITEMS: readonly NavItem[] = [
   { href: "/", label: "Catalogue", roles: ["viewer", "modeller", "reviewer", "admin"] },
   { href: "/setups", label: "Setups", roles: ["viewer", "modeller", "reviewer", "admin"] },
+  { href: "/playground", label: "Playground", roles: ["viewer", "modeller", "reviewer", "admin"] },
+  { href: "/api-reference", label: "API", roles: ["viewer", "modeller", "reviewer", "admin"] },
   { href: "/tokens", label: "Tokens", roles: ["viewer", "modeller", "reviewer", "admin"] },
   { href: "/account", label: "Account", roles: ["viewer", "modeller", "reviewer", "admin"] },
   { href: "/people", label: "People", roles: ["admin"] },

@@ -31,6 +31,7 @@ db_password="${DATABASE_PASSWORD:-stillpoint-local}"
 socket="$dir/mariadb.sock"
 pid_file="$dir/mariadbd.pid"
 
+source "$repo_root/db/instance.sh"
 log() { echo "[mariadb:$instance] $*" >&2; }
 die() { log "error: $*"; exit 1; }
 
@@ -38,14 +39,6 @@ die() { log "error: $*"; exit 1; }
 [[ "$db_name" =~ ^[A-Za-z0-9_]+$ ]] || die "DATABASE_NAME may hold only letters, digits and '_'"
 [[ "$db_user" =~ ^[A-Za-z0-9_]+$ ]] || die "DATABASE_USER may hold only letters, digits and '_'"
 [[ "$db_password" != *"'"* && "$db_password" != *"\\"* ]] || die "DATABASE_PASSWORD may not contain quotes or backslashes"
-
-running_pid() {
-  [[ -f "$pid_file" ]] || return 1
-  local pid
-  pid="$(cat "$pid_file" 2>/dev/null || true)"
-  [[ -n "$pid" ]] && kill -0 "$pid" 2>/dev/null || return 1
-  echo "$pid"
-}
 
 client() { mariadb --no-defaults --socket="$socket" -uroot "$@"; }
 
@@ -109,33 +102,9 @@ GRANT ALL PRIVILEGES ON \`$db_name%\`.* TO '$db_user'@'127.0.0.1';
 SQL
 }
 
-stop() {
-  local pid
-  if ! pid="$(running_pid)"; then
-    log "not running"
-    return
-  fi
-  log "stopping (pid $pid)"
-  kill -TERM "$pid"
-  local waited=0
-  while kill -0 "$pid" 2>/dev/null; do
-    sleep 0.1
-    waited=$((waited + 1))
-    (( waited < 600 )) || die "pid $pid did not stop within 60 s"
-  done
-  rm -f "$pid_file"
-  log "stopped"
-}
+stop() { stop_instance 600; }
 
-status() {
-  local pid
-  if pid="$(running_pid)"; then
-    echo "running pid=$pid port=$(cat "$dir/port" 2>/dev/null || echo "?") socket=$socket"
-  else
-    echo "stopped"
-    exit 3
-  fi
-}
+status() { status_instance socket=$socket; }
 
 # One start or stop at a time per instance (npm start and npm test may run side by side).
 mkdir -p "$data_root"

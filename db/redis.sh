@@ -23,18 +23,11 @@ esac
 port="${REDIS_PORT:-$default_port}"
 pid_file="$dir/redis.pid"
 
+source "$repo_root/db/instance.sh"
 log() { echo "[redis:$instance] $*" >&2; }
 die() { log "error: $*"; exit 1; }
 
 [[ "$instance" =~ ^[A-Za-z0-9_-]+$ ]] || die "instance name may hold only letters, digits, '-' and '_'"
-
-running_pid() {
-  [[ -f "$pid_file" ]] || return 1
-  local pid
-  pid="$(cat "$pid_file" 2>/dev/null || true)"
-  [[ -n "$pid" ]] && kill -0 "$pid" 2>/dev/null || return 1
-  echo "$pid"
-}
 
 ensure_installed() {
   command -v redis-server >/dev/null 2>&1 && command -v redis-cli >/dev/null 2>&1 && return
@@ -74,33 +67,9 @@ start() {
   log "running (pid $(cat "$pid_file"))"
 }
 
-stop() {
-  local pid
-  if ! pid="$(running_pid)"; then
-    log "not running"
-    return
-  fi
-  log "stopping (pid $pid)"
-  kill -TERM "$pid"
-  local waited=0
-  while kill -0 "$pid" 2>/dev/null; do
-    sleep 0.1
-    waited=$((waited + 1))
-    (( waited < 300 )) || die "pid $pid did not stop within 30 s"
-  done
-  rm -f "$pid_file"
-  log "stopped"
-}
+stop() { stop_instance 300; }
 
-status() {
-  local pid
-  if pid="$(running_pid)"; then
-    echo "running pid=$pid port=$(cat "$dir/port" 2>/dev/null || echo "?")"
-  else
-    echo "stopped"
-    exit 3
-  fi
-}
+status() { status_instance; }
 
 mkdir -p "$data_root"
 exec 9>"$data_root/redis-$instance.lock"

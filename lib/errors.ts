@@ -94,8 +94,13 @@ export class ServiceUnavailableError extends DomainError {
   }
 }
 
-/** A body that is not what the route reads at all (not JSON, not multipart). */
+/** A body that is not what the route reads at all (not multipart, not a form). */
 export class BadRequestError extends DomainError {
   readonly status = 400;
-  readonly title = "Malformed request";
+  readonly title: string = "Malformed request";
+}
+
+/** A body that should be JSON and is not. */
+export class MalformedJsonError extends BadRequestError {
+  override readonly title = "Malformed JSON";
 }

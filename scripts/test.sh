@@ -57,6 +57,13 @@ root_sql "DROP DATABASE IF EXISTS \`$DATABASE_NAME\`; CREATE DATABASE \`$DATABAS
 knex_cli migrate:latest || fail "migrations failed"
 knex_cli seed:run || fail "seeding the test database failed"
 
+# Browser tests (tests/browser): playwright-core drives Debian's chromium; install the package when it is missing.
+if [[ ! -x /usr/bin/chromium ]]; then
+  echo "[test] installing chromium for the browser tests" >&2
+  { apt-get update -qq && DEBIAN_FRONTEND=noninteractive apt-get install -y -qq --no-install-recommends chromium; } >&2 \
+    || echo "[test] could not install chromium; the browser tests will fail" >&2
+fi
+
 echo "[test] tsc --noEmit" >&2
 tsc_status=0
 npx --no-install tsc --noEmit || tsc_status=$?

@@ -37,7 +37,17 @@ export function useActionErrors<TValues extends FieldValues>(setError: UseFormSe
     }
     return false;
   }
-  return { formError, setFormError, apply };
+  /** Calls a server action and applies its answer; a failure of the server itself becomes the form's message. */
+  async function submit<T>(call: () => Promise<ActionResult<T>>): Promise<T | null> {
+    try {
+      const result = await call();
+      return apply(result) ? result.data : null;
+    } catch {
+      setFormError("The server did not finish the request. Nothing was changed that you cannot see; try again in a moment.");
+      return null;
+    }
+  }
+  return { formError, setFormError, apply, submit };
 }
 
 /** The message of a nested field's error, by dotted path. */

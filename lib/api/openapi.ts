@@ -1,10 +1,12 @@
+import { OpenAPIRegistry, OpenApiGeneratorV31 } from "@asteasolutions/zod-to-openapi";
 import { z } from "zod";
 import { SURROGATE_NOTICE } from "../surrogate/model";
 import { LIST_LIMIT_DEFAULT, LIST_LIMIT_MAX } from "../validation/list";
-import { createModelSchema, createSetupSchema, createTokenSchema, VERSION_STATES } from "../validation/registry";
+import { createModelSchema, createSetupSchema, createTokenSchema, retireBodySchema, reviewBodySchema, VERSION_STATES } from "../validation/registry";
 import { setupSchema } from "../validation/setup";
 import { versionTrainingSchema } from "../validation/training";
 import { evaluateBodySchema } from "../validation/evaluate";
+import { exactBodySchema } from "../validation/exact";
 import { meSchema } from "../validation/user";
 import { zernikeSetSchema } from "../validation/zernike";
 
@@ -42,7 +44,8 @@ interface Operation {
   summary: string;
   /** Who may call it, in API.md's words. */
   who: string;
-  body?: { content: Record<string, unknown>; description?: string };
+  /** The handler's own zod schema (JSON bodies), or the content of a non-JSON body. */
+  body?: { schema?: z.ZodType; content?: Record<string, unknown>; description?: string };
   query?: { name: string; schema: object; description: string }[];
   ok: { status: string; description: string; content?: Record<string, unknown>; headers?: Record<string, unknown> };
   problems: Status[];
@@ -67,17 +70,17 @@ const list = (item: object) => ({
 });
 
 const OPERATIONS: Operation[] = [
-  { method: "get", path: "/api/v1/me", id: "getMe", summary: "The signed-in person and their roles", who: "any signed-in person", ok: { status: "200", description: "The person", content: json(ref("Me")) }, problems: ["401"] },
+  { method: "get", path: "/api/v1/me", id: "getMe", summary: "The signed-in person (or a token's owner) and their roles", who: "any signed-in person or token", ok: { status: "200", description: "The person", content: json(ref("Me")) }, problems: ["401"] },
   {
     method: "post", path: "/api/v1/setups/check", id: "checkSetup", summary: "Check an optical setup before saving it", who: "modeller",
-    body: { content: json(ref("Setup")) },
+    body: { schema: setupSchema },
     ok: { status: "200", description: "The setup as the server would store it", content: json({ type: "object", required: ["setup"], properties: { setup: ref("Setup") } }) },
     problems: ["400", "401", "403", "422"],
   },
   { method: "get", path: "/api/v1/openapi.json", id: "getOpenApi", summary: "This document", who: "anyone", public: true, ok: { status: "200", description: "OpenAPI 3.1 document", content: { "application/json": {} } }, problems: [] },
   {
     method: "post", path: "/api/v1/tokens", id: "createToken", summary: "Create an API token; the secret is in this answer only", who: "any signed-in person (session only)",
-    body: { content: json(ref("CreateToken")) },
+    body: { schema: createTokenSchema },
     ok: { status: "201", description: "The token with its secret in `token`", content: json(ref("Token")) },
     problems: ["400", "401", "403", "422"],
   },
@@ -93,7 +96,7 @@ const OPERATIONS: Operation[] = [
   },
   {
     method: "post", path: "/api/v1/setups", id: "createSetup", summary: "Define an optical setup", who: "modeller / train",
-    body: { content: json(ref("CreateSetup")) }, ok: { status: "201", description: "The setup", content: json(ref("SetupItem")) }, problems: ["400", "401", "403", "409", "422"],
+    body: { schema: createSetupSchema }, ok: { status: "201", description: "The setup", content: json(ref("SetupItem")) }, problems: ["400", "401", "403", "409", "422"],
   },
   {
     method: "get", path: "/api/v1/models", id: "listModels", summary: "Models, searchable by text, version state and setup", who: "read",
@@ -107,12 +110,12 @@ const OPERATIONS: Operation[] = [
   },
   {
     method: "post", path: "/api/v1/models", id: "createModel", summary: "Create a model (a slug bound to a setup and a Zernike set)", who: "modeller / train",
-    body: { content: json(ref("CreateModel")) }, ok: { status: "201", description: "The model with its setup", content: json(ref("Model")) }, problems: ["400", "401", "403", "404", "409", "422"],
+    body: { schema: createModelSchema }, ok: { status: "201", description: "The model with its setup", content: json(ref("Model")) }, problems: ["400", "401", "403", "404", "409", "422"],
   },
   { method: "get", path: "/api/v1/models/{slug}", id: "getModel", summary: "A model with its setup and versions", who: "read", ok: { status: "200", description: "The model", content: json(ref("Model")) }, problems: ["401", "403", "404"] },
   {
     method: "post", path: "/api/v1/models/{slug}/versions", id: "trainVersion", summary: "Train a new version on the job queue", who: "modeller / train",
-    body: { content: json(ref("TrainVersion")) },
+    body: { schema: versionTrainingSchema },
     ok: { status: "202", description: "The queued run (Location: its URL)", content: json({ type: "object", required: ["run"], properties: { run: ref("Run") } }) },
     problems: ["400", "401", "403", "404", "422", "503"],
   },
@@ -136,7 +139,7 @@ const OPERATIONS: Operation[] = [
   {
     method: "post", path: "/api/v1/models/{slug}/versions/{version}/evaluate", id: "evaluateVersion",
     summary: "Evaluate wavefronts against a pinned version: maps, offsets or peaks", who: "evaluate scope, or any signed-in person (drafts and versions in review: signed-in modellers and reviewers)",
-    body: { content: json(ref("EvaluateRequest")) },
+    body: { schema: evaluateBodySchema },
     ok: {
       status: "200", description: "One result per wavefront, in order, with the version, its checksum and the notice", content: json(ref("EvaluateAnswer")),
       headers: {
@@ -146,6 +149,24 @@ const OPERATIONS: Operation[] = [
       },
     },
     problems: ["400", "401", "403", "404", "410", "413", "422", "429", "503"],
+  },
+  {
+    method: "post", path: "/api/v1/models/{slug}/versions/{version}/exact", id: "exactVersion",
+    summary: "Exact far-field maps of one wavefront on the version's setup, beside the surrogate's and their difference (surrogate - exact)",
+    who: "evaluate scope, or any signed-in person (the same versions as evaluate)",
+    body: { content: json(ref("ExactRequest")) },
+    ok: { status: "200", description: "Exact, surrogate and difference maps (pm/nrad, [iy][ix]; null at far-field nulls), the validity block and the notice", content: json(ref("ExactAnswer")) },
+    problems: ["400", "401", "403", "404", "410", "413", "422", "429", "503"],
+  },
+  {
+    method: "post", path: "/api/v1/models/{slug}/versions/{version}/review", id: "reviewVersion", summary: "Approve a version in review (-> released) or return it to draft with a comment",
+    who: "a reviewer who did not make the version (session only)", body: { schema: reviewBodySchema },
+    ok: { status: "200", description: "The version after the decision", content: json(ref("Version")) }, problems: ["400", "401", "403", "404", "409", "422"],
+  },
+  {
+    method: "post", path: "/api/v1/models/{slug}/versions/{version}/retire", id: "retireVersion", summary: "Retire a released version with a reason, a sunset and an optional successor",
+    who: "admin (session only)", body: { schema: retireBodySchema },
+    ok: { status: "200", description: "The version, retired", content: json(ref("Version")) }, problems: ["400", "401", "403", "404", "409", "422"],
   },
   { method: "post", path: "/api/v1/models/{slug}/versions/{version}/submit", id: "submitVersion", summary: "Submit a draft for review", who: "its modeller (session or train token)", ok: { status: "200", description: "The version, in-review", content: json(ref("Version")) }, problems: ["401", "403", "404", "409"] },
   {
@@ -187,24 +208,30 @@ const RUN_SCHEMA = {
   },
 };
 
-function operationObject(op: Operation) {
-  const parameters = [
-    ...[...op.path.matchAll(/\{(\w+)\}/g)].map(([, name]) => ({ name, in: "path", required: true, ...pathParams[name] })),
-    ...(op.query ?? []).map((q) => ({ name: q.name, in: "query", required: false, schema: q.schema, description: q.description })),
-  ];
-  const responses: Record<string, unknown> = {
+const METHOD_STATUS_CODES = (op: Operation) => {
+  const responses: Record<string, { description: string; content?: Record<string, unknown>; headers?: Record<string, unknown> }> = {
     [op.ok.status]: { description: op.ok.description, ...(op.ok.content ? { content: op.ok.content } : {}), ...(op.ok.headers ? { headers: op.ok.headers } : {}) },
   };
   for (const status of op.problems) responses[status] = problem(PROBLEMS[status]);
-  return {
+  return responses;
+};
+
+/** Register one operation: its JSON body straight from the handler's zod schema (zod-to-openapi converts it). */
+function register(registry: OpenAPIRegistry, op: Operation): void {
+  const pathParameters = [...op.path.matchAll(/\{(\w+)\}/g)].map(([, name]) => ({ name, in: "path" as const, required: true, ...pathParams[name] }));
+  const queryParameters = (op.query ?? []).map((q) => ({ name: q.name, in: "query" as const, required: false, schema: q.schema, description: q.description }));
+  const content = op.body?.schema ? { "application/json": { schema: op.body.schema } } : op.body?.content;
+  registry.registerPath({
+    method: op.method,
+    path: op.path.replace(/\{(\w+)\}/g, "{$1}"),
     operationId: op.id,
     summary: op.summary,
     description: `Who may call it: ${op.who}.`,
     ...(op.public ? { security: [] } : {}),
-    ...(parameters.length > 0 ? { parameters } : {}),
-    ...(op.body ? { requestBody: { required: true, content: op.body.content, ...(op.body.description ? { description: op.body.description } : {}) } } : {}),
-    responses,
-  };
+    ...(pathParameters.length + queryParameters.length > 0 ? { parameters: [...pathParameters, ...queryParameters] as never } : {}),
+    ...(content ? { request: { body: { required: true, content: content as never, ...(op.body?.description ? { description: op.body.description } : {}) } } } : {}),
+    responses: METHOD_STATUS_CODES(op) as never,
+  });
 }
 
 /** The operations this document describes, as `METHOD path` (the OpenAPI test compares them with the handlers on disk). */
@@ -212,119 +239,137 @@ export function describedOperations(): string[] {
   return OPERATIONS.map((op) => `${op.method.toUpperCase()} ${op.path}`);
 }
 
-/** The OpenAPI 3.1 description of /api/v1, built from the same zod schemas the handlers use. */
+/**
+ * The OpenAPI 3.1 description of /api/v1, generated by @asteasolutions/zod-to-openapi: request bodies from the very
+ * zod schemas the handlers parse with, shared components from the same schemas, responses described beside them.
+ */
 export function openApiDocument() {
-  const paths: Record<string, Record<string, unknown>> = {};
-  for (const op of OPERATIONS) (paths[op.path] ??= {})[op.method] = operationObject(op);
-  return {
+  const registry = new OpenAPIRegistry();
+  for (const [name, schema] of Object.entries(COMPONENT_SCHEMAS())) registry.registerComponent("schemas", name, schema as never);
+  registry.registerComponent("securitySchemes", "session", { type: "apiKey", in: "cookie", name: "next-auth.session-token", description: "Browser session from signing in at /sign-in." });
+  registry.registerComponent("securitySchemes", "bearer", {
+    type: "http", scheme: "bearer", description: "An API token (stp_...) created on the tokens page; it acts for its owner within its scopes and models.",
+  });
+  for (const op of OPERATIONS) register(registry, op);
+  const document = new OpenApiGeneratorV31(registry.definitions).generateDocument({
     openapi: "3.1.0",
-    info: {
-      title: "Stillpoint API",
-      version: "1",
-      description: `Tilt-to-length surrogate model registry. ${SURROGATE_NOTICE}`,
-    },
+    info: { title: "Stillpoint API", version: "1", description: `Tilt-to-length surrogate model registry. ${SURROGATE_NOTICE}` },
     servers: [{ url: "/" }],
-    components: {
-      securitySchemes: {
-        session: { type: "apiKey", in: "cookie", name: "next-auth.session-token", description: "Browser session from signing in at /sign-in." },
-        bearer: { type: "http", scheme: "bearer", description: "An API token (stp_...) created on the tokens page; it acts for its owner within its scopes and models." },
-      },
-      schemas: {
-        Setup: jsonSchema(setupSchema),
-        ZernikeSet: jsonSchema(zernikeSetSchema),
-        Me: jsonSchema(meSchema),
-        CreateSetup: jsonSchema(createSetupSchema),
-        CreateModel: jsonSchema(createModelSchema),
-        CreateToken: jsonSchema(createTokenSchema),
-        TrainVersion: jsonSchema(versionTrainingSchema),
-        EvaluateRequest: jsonSchema(evaluateBodySchema),
-        EvaluateAnswer: {
-          type: "object",
-          required: ["model", "version", "state", "coefficientsSha256", "thetaNrad", "results", "notice"],
-          properties: {
-            model: { type: "string" }, version: { type: "integer" }, state: { enum: [...VERSION_STATES] }, coefficientsSha256: { type: "string" },
-            thetaNrad: { type: "array", items: { type: "number" } },
-            results: {
-              type: "array",
-              items: {
-                type: "object",
-                required: ["peakAbsTtlPmPerNrad", "peakAt", "validity"],
-                properties: {
-                  ttlXPmPerNrad: { type: "array", items: { type: "array", items: { type: "number" } }, description: "[iy][ix], output map only" },
-                  ttlYPmPerNrad: { type: "array", items: { type: "array", items: { type: "number" } } },
-                  offsets: { type: "array", items: { type: "object", properties: { thetaXNrad: { type: "number" }, thetaYNrad: { type: "number" }, ttlXPmPerNrad: { type: "number" }, ttlYPmPerNrad: { type: "number" } } } },
-                  peakAbsTtlPmPerNrad: { type: "number" },
-                  peakAt: { type: "object", properties: { thetaXNrad: { type: "number" }, thetaYNrad: { type: "number" }, axis: { enum: ["x", "y"] } } },
-                  peakLengthNoisePm: { type: "number", description: "jitterNrad * max sqrt(c_x^2 + c_y^2), with jitterNrad only" },
-                  validity: { type: "object", properties: { inRange: { type: "boolean" }, warnings: { type: "array", items: { type: "string" } } } },
-                },
-              },
+    security: [{ session: [] }, { bearer: [] }],
+  });
+  return document;
+}
+
+/** Shared schemas: the inputs from the handlers' zod schemas, the answers described here. */
+function COMPONENT_SCHEMAS(): Record<string, unknown> {
+  return {
+    Setup: jsonSchema(setupSchema),
+    ZernikeSet: jsonSchema(zernikeSetSchema),
+    Me: jsonSchema(meSchema),
+    CreateSetup: jsonSchema(createSetupSchema),
+    CreateModel: jsonSchema(createModelSchema),
+    CreateToken: jsonSchema(createTokenSchema),
+    TrainVersion: jsonSchema(versionTrainingSchema),
+    EvaluateRequest: jsonSchema(evaluateBodySchema),
+    EvaluateAnswer: {
+      type: "object",
+      required: ["model", "version", "state", "coefficientsSha256", "thetaNrad", "results", "notice"],
+      properties: {
+        model: { type: "string" }, version: { type: "integer" }, state: { enum: [...VERSION_STATES] }, coefficientsSha256: { type: "string" },
+        thetaNrad: { type: "array", items: { type: "number" } },
+        results: {
+          type: "array",
+          items: {
+            type: "object",
+            required: ["peakAbsTtlPmPerNrad", "peakAt", "validity"],
+            properties: {
+              ttlXPmPerNrad: { type: "array", items: { type: "array", items: { type: "number" } }, description: "[iy][ix], output map only" },
+              ttlYPmPerNrad: { type: "array", items: { type: "array", items: { type: "number" } } },
+              offsets: { type: "array", items: { type: "object", properties: { thetaXNrad: { type: "number" }, thetaYNrad: { type: "number" }, ttlXPmPerNrad: { type: "number" }, ttlYPmPerNrad: { type: "number" } } } },
+              peakAbsTtlPmPerNrad: { type: "number" },
+              peakAt: { type: "object", properties: { thetaXNrad: { type: "number" }, thetaYNrad: { type: "number" }, axis: { enum: ["x", "y"] } } },
+              peakLengthNoisePm: { type: "number", description: "jitterNrad * max sqrt(c_x^2 + c_y^2), with jitterNrad only" },
+              validity: { type: "object", properties: { inRange: { type: "boolean" }, warnings: { type: "array", items: { type: "string" } } } },
             },
-            notice: { type: "string", const: SURROGATE_NOTICE },
           },
         },
-        SetupItem: {
-          type: "object",
-          required: ["id", "name", "setup", "derived"],
-          properties: {
-            id: { type: "integer" }, name: { type: "string" }, setup: ref("Setup"),
-            derived: { type: "object", properties: { diffractionAngleNrad: { type: "number" }, beamToApertureRatio: { type: "number" }, fresnelNumber: { type: "number" }, onAxisGain: { type: "number" } } },
-          },
-        },
-        Model: {
-          type: "object",
-          required: ["slug", "name", "description", "setupId", "zernike", "versions", "latestReleasedVersion"],
-          properties: {
-            slug: { type: "string" }, name: { type: "string" }, description: { type: ["string", "null"] }, setupId: { type: "integer" }, zernike: ref("ZernikeSet"),
-            versions: { type: "array", items: { type: "object", properties: { version: { type: "integer" }, order: { enum: [1, 2] }, state: { enum: [...VERSION_STATES] }, termCount: { type: "integer" } } } },
-            latestReleasedVersion: { type: ["integer", "null"] },
-            setup: ref("SetupItem"),
-          },
-        },
-        Version: {
-          type: "object",
-          required: ["model", "version", "state", "order", "setup", "zernike", "terms", "validity", "statistics", "provenance", "fit", "pruning", "coefficientsSha256", "parentVersion", "history", "retirement", "createdBy", "createdAt"],
-          properties: {
-            model: { type: "string" }, version: { type: "integer" }, state: { enum: [...VERSION_STATES] }, order: { enum: [1, 2] },
-            setup: ref("Setup"), zernike: ref("ZernikeSet"),
-            terms: { type: "array", items: { type: "array", items: { type: "integer" }, maxItems: 2 }, description: "Noll indices each term multiplies: [] constant, [i] linear, [i, j] product" },
-            validity: { type: "object", properties: { maxTotalRmsNm: { type: "number" }, termBoundsNm: { type: "array", items: { type: "object", properties: { noll: { type: "integer" }, minNm: { type: "number" }, maxNm: { type: "number" } } } } } },
-            statistics: { type: ["object", "null"] }, provenance: { type: "object" }, fit: { type: "object" }, pruning: { type: ["object", "null"] },
-            coefficientsSha256: { type: "string" }, parentVersion: { type: ["integer", "null"] },
-            history: { type: "array", items: { type: "object", properties: { state: { type: "string" }, at: { type: "string" }, by: { type: ["string", "null"] }, comment: { type: ["string", "null"] } } } },
-            retirement: { type: ["object", "null"], properties: { reason: { type: "string" }, retiredAt: { type: "string" }, sunsetAt: { type: "string" }, successorVersion: { type: ["integer", "null"] } } },
-            createdBy: { type: ["string", "null"] }, createdAt: { type: "string" },
-            notice: { type: "string", const: SURROGATE_NOTICE },
-          },
-        },
-        Token: {
-          type: "object",
-          required: ["id", "name", "scopes", "models", "expiresAt", "createdAt"],
-          properties: {
-            id: { type: "integer" }, name: { type: "string" }, scopes: { type: "array", items: { enum: ["read", "evaluate", "train"] } },
-            models: { type: ["array", "null"], items: { type: "string" } }, expiresAt: { type: ["string", "null"] }, createdAt: { type: "string" },
-            lastUsedAt: { type: ["string", "null"] }, useCount: { type: "integer" }, revokedAt: { type: ["string", "null"] }, owner: { type: "string" },
-            token: { type: "string", description: "The secret, only in the answer to POST /tokens" },
-          },
-        },
-        GeneratingSet: {
-          type: "object",
-          required: ["id", "samples", "sha256", "createdAt"],
-          properties: { id: { type: "integer" }, samples: { type: "integer" }, sha256: { type: "string" }, createdAt: { type: "string" }, fileName: { type: ["string", "null"] }, sizeBytes: { type: "integer" } },
-        },
-        Run: RUN_SCHEMA,
-        Problem: {
-          type: "object",
-          description: "RFC 9457 problem details.",
-          required: ["type", "title", "status"],
-          properties: {
-            type: { type: "string" }, title: { type: "string" }, status: { type: "integer" }, detail: { type: "string" }, instance: { type: "string" },
-            issues: { type: "array", items: { type: "object", required: ["path", "message"], properties: { path: { type: "string" }, message: { type: "string" } } } },
-          },
-        },
+        notice: { type: "string", const: SURROGATE_NOTICE },
       },
     },
-    security: [{ session: [] }, { bearer: [] }],
-    paths,
+    ExactRequest: jsonSchema(exactBodySchema),
+    ExactAnswer: {
+      type: "object",
+      required: ["model", "version", "state", "coefficientsSha256", "thetaNrad", "exact", "surrogate", "differencePmPerNrad", "maxAbsDifferencePmPerNrad", "maxAbsDifferenceAt", "validity", "notice"],
+      properties: {
+        model: { type: "string" }, version: { type: "integer" }, state: { enum: [...VERSION_STATES] }, coefficientsSha256: { type: "string" },
+        thetaNrad: { type: "array", items: { type: "number" } },
+        exact: { type: "object", properties: { ttlXPmPerNrad: { type: "array", items: { type: "array", items: { type: ["number", "null"] } } }, ttlYPmPerNrad: { type: "array", items: { type: "array", items: { type: ["number", "null"] } } }, peakAbsTtlPmPerNrad: { type: "number" } } },
+        surrogate: { type: "object", properties: { ttlXPmPerNrad: { type: "array", items: { type: "array", items: { type: ["number", "null"] } } }, ttlYPmPerNrad: { type: "array", items: { type: "array", items: { type: ["number", "null"] } } }, peakAbsTtlPmPerNrad: { type: "number" } } },
+        differencePmPerNrad: { type: "object", description: "surrogate - exact per node", properties: { x: { type: "array", items: { type: "array", items: { type: ["number", "null"] } } }, y: { type: "array", items: { type: "array", items: { type: ["number", "null"] } } } } },
+        maxAbsDifferencePmPerNrad: { type: "number" },
+        maxAbsDifferenceAt: { type: ["object", "null"], properties: { thetaXNrad: { type: "number" }, thetaYNrad: { type: "number" }, axis: { enum: ["x", "y"] } } },
+        validity: { type: "object", properties: { inRange: { type: "boolean" }, warnings: { type: "array", items: { type: "string" } } } },
+        notice: { type: "string", const: SURROGATE_NOTICE },
+      },
+    },
+    SetupItem: {
+      type: "object",
+      required: ["id", "name", "setup", "derived"],
+      properties: {
+        id: { type: "integer" }, name: { type: "string" }, setup: ref("Setup"),
+        derived: { type: "object", properties: { diffractionAngleNrad: { type: "number" }, beamToApertureRatio: { type: "number" }, fresnelNumber: { type: "number" }, onAxisGain: { type: "number" } } },
+      },
+    },
+    Model: {
+      type: "object",
+      required: ["slug", "name", "description", "setupId", "zernike", "versions", "latestReleasedVersion"],
+      properties: {
+        slug: { type: "string" }, name: { type: "string" }, description: { type: ["string", "null"] }, setupId: { type: "integer" }, zernike: ref("ZernikeSet"),
+        versions: { type: "array", items: { type: "object", properties: { version: { type: "integer" }, order: { enum: [1, 2] }, state: { enum: [...VERSION_STATES] }, termCount: { type: "integer" } } } },
+        latestReleasedVersion: { type: ["integer", "null"] },
+        setup: ref("SetupItem"),
+      },
+    },
+    Version: {
+      type: "object",
+      required: ["model", "version", "state", "order", "setup", "zernike", "terms", "validity", "statistics", "provenance", "fit", "pruning", "coefficientsSha256", "parentVersion", "history", "retirement", "createdBy", "createdAt"],
+      properties: {
+        model: { type: "string" }, version: { type: "integer" }, state: { enum: [...VERSION_STATES] }, order: { enum: [1, 2] },
+        setup: ref("Setup"), zernike: ref("ZernikeSet"),
+        terms: { type: "array", items: { type: "array", items: { type: "integer" }, maxItems: 2 }, description: "Noll indices each term multiplies: [] constant, [i] linear, [i, j] product" },
+        validity: { type: "object", properties: { maxTotalRmsNm: { type: "number" }, termBoundsNm: { type: "array", items: { type: "object", properties: { noll: { type: "integer" }, minNm: { type: "number" }, maxNm: { type: "number" } } } } } },
+        statistics: { type: ["object", "null"] }, provenance: { type: "object" }, fit: { type: "object" }, pruning: { type: ["object", "null"] },
+        coefficientsSha256: { type: "string" }, parentVersion: { type: ["integer", "null"] },
+        history: { type: "array", items: { type: "object", properties: { state: { type: "string" }, at: { type: "string" }, by: { type: ["string", "null"] }, comment: { type: ["string", "null"] } } } },
+        retirement: { type: ["object", "null"], properties: { reason: { type: "string" }, retiredAt: { type: "string" }, sunsetAt: { type: "string" }, successorVersion: { type: ["integer", "null"] } } },
+        createdBy: { type: ["string", "null"] }, createdAt: { type: "string" },
+        notice: { type: "string", const: SURROGATE_NOTICE },
+      },
+    },
+    Token: {
+      type: "object",
+      required: ["id", "name", "scopes", "models", "expiresAt", "createdAt"],
+      properties: {
+        id: { type: "integer" }, name: { type: "string" }, scopes: { type: "array", items: { enum: ["read", "evaluate", "train"] } },
+        models: { type: ["array", "null"], items: { type: "string" } }, expiresAt: { type: ["string", "null"] }, createdAt: { type: "string" },
+        lastUsedAt: { type: ["string", "null"] }, useCount: { type: "integer" }, revokedAt: { type: ["string", "null"] }, owner: { type: "string" },
+        token: { type: "string", description: "The secret, only in the answer to POST /tokens" },
+      },
+    },
+    GeneratingSet: {
+      type: "object",
+      required: ["id", "samples", "sha256", "createdAt"],
+      properties: { id: { type: "integer" }, samples: { type: "integer" }, sha256: { type: "string" }, createdAt: { type: "string" }, fileName: { type: ["string", "null"] }, sizeBytes: { type: "integer" } },
+    },
+    Run: RUN_SCHEMA,
+    Problem: {
+      type: "object",
+      description: "RFC 9457 problem details.",
+      required: ["type", "title", "status"],
+      properties: {
+        type: { type: "string" }, title: { type: "string" }, status: { type: "integer" }, detail: { type: "string" }, instance: { type: "string" },
+        issues: { type: "array", items: { type: "object", required: ["path", "message"], properties: { path: { type: "string" }, message: { type: "string" } } } },
+      },
+    },
   };
 }

@@ -1,5 +1,5 @@
 import type { z } from "zod";
-import { BadRequestError, NotFoundError, PayloadTooLargeError } from "../errors.ts";
+import { MalformedJsonError, NotFoundError, PayloadTooLargeError } from "../errors.ts";
 import { queryObject } from "../validation/list.ts";
 import { versionNumberSchema } from "../validation/registry.ts";
 
@@ -19,9 +19,9 @@ export async function readJson<S extends z.ZodType>(request: Request, schema: S)
   try {
     value = text.trim() === "" ? undefined : JSON.parse(text);
   } catch {
-    throw new BadRequestError("The request body is not valid JSON.");
+    throw new MalformedJsonError("The request body is not valid JSON.");
   }
-  if (value === undefined) throw new BadRequestError("The request needs a JSON body.");
+  if (value === undefined) throw new MalformedJsonError("The request needs a JSON body.");
   return schema.parse(value);
 }
 

@@ -1,6 +1,6 @@
 import type { Knex } from "knex";
-import { assertCan, can, seesModel, type Actor } from "../access/actor.ts";
-import { ConflictError, NotFoundError } from "../errors.ts";
+import { assertCan, can, type Actor } from "../access/actor.ts";
+import { ConflictError, ForbiddenError, NotFoundError } from "../errors.ts";
 import type { RunKind, RunState } from "../validation/registry.ts";
 import { recordAuditEvent } from "./audit.ts";
 import { db } from "./knex.ts";
@@ -128,7 +128,7 @@ async function joinedRun(id: number, conn: Knex): Promise<JoinedRunRow | undefin
 export async function getRun(actor: Actor, id: number, conn: Knex = db()): Promise<RunDetail> {
   assertCan(actor, "read");
   const row = await joinedRun(id, conn);
-  if (!row || !seesModel(actor, row.model_slug)) throw new NotFoundError(`There is no run ${id}.`);
+  if (!row) throw new NotFoundError(`There is no run ${id}.`);
   assertCan(actor, "read", row.model_slug);
   const log: { at: Date; level: RunLogLine["level"]; message: string; worker: string | null }[] = await conn("run_log").where({ run_id: id }).orderBy("id");
   return { ...toItem(row), log: log.map((l) => ({ at: toIso(l.at)!, level: l.level, message: l.message, worker: l.worker })) };
@@ -176,9 +176,10 @@ export async function runItem(id: number, conn: Knex = db()): Promise<RunItem> {
 export async function cancelRun(actor: Actor, id: number, conn: Knex = db()): Promise<RunItem> {
   assertCan(actor, "read");
   const row = await joinedRun(id, conn);
-  if (!row || !seesModel(actor, row.model_slug)) throw new NotFoundError(`There is no run ${id}.`);
+  if (!row) throw new NotFoundError(`There is no run ${id}.`);
+  assertCan(actor, "read", row.model_slug);
   const allowed = (row.created_by === actor.userId && can(actor, "train", row.model_slug)) || can(actor, "admin");
-  if (!allowed) assertCan(actor, "admin");
+  if (!allowed) throw new ForbiddenError("Only the modeller who queued this run (with the train scope) or an admin may cancel it.");
   await conn.transaction(async (trx) => {
     const locked: RunRow | undefined = await trx("runs").where({ id }).forUpdate().first();
     if (!locked || !ACTIVE.includes(locked.state)) {

@@ -447,3 +447,18 @@ export async function loadSurrogateById(versionId: number, conn: Knex = db()): P
   if (sha256Hex(bytes) !== blob.sha256) throw new Error(`the stored coefficients of version ${versionId} do not match their checksum`);
   return decodeModel(bytes);
 }
+
+/** Evaluation records of every released version, newest first (for warming the model cache). */
+export async function releasedEvaluationTargets(conn: Knex = db()): Promise<EvaluationTarget[]> {
+  const rows: { slug: string; version: number }[] = await conn("model_versions")
+    .join("models", "models.id", "model_versions.model_id")
+    .select("models.slug", "model_versions.version")
+    .where("model_versions.state", "released")
+    .orderBy("model_versions.created_at", "desc");
+  const out: EvaluationTarget[] = [];
+  for (const row of rows) {
+    const target = await evaluationTarget(row.slug, row.version, conn);
+    if (target) out.push(target);
+  }
+  return out;
+}

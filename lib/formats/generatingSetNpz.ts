@@ -1,4 +1,4 @@
-import { toNollIndex } from "../optics/zernike.ts";
+import { requireNollIndices } from "../optics/zernike.ts";
 import type { SampleSet } from "../surrogate/designs.ts";
 import type { NpyArray } from "./npy.ts";
 import { NpzError, readNpz } from "./npz.ts";
@@ -49,15 +49,12 @@ export function readGeneratingSetNpz(bytes: Uint8Array, target: GeneratingSetTar
   }
   const J = target.nollIndices.length;
   const M = target.thetaNrad.length;
-  const given = Array.from(indices.data);
-  for (const j of given) {
-    try {
-      toNollIndex("noll", j);
-    } catch {
-      throw new NpzError(`noll_indices holds ${j}, which is not a Noll index`);
-    }
+  let given: number[];
+  try {
+    given = requireNollIndices(indices.data, "noll_indices");
+  } catch (error) {
+    throw new NpzError((error as Error).message);
   }
-  if (new Set(given).size !== given.length) throw new NpzError("noll_indices lists a term more than once");
   const wanted = new Set(target.nollIndices);
   if (given.length !== J || given.some((j) => !wanted.has(j))) {
     throw new NpzError(`noll_indices (${given.join(", ")}) must be, as a set, the model's Zernike set (Noll ${target.nollIndices.join(", ")})`);

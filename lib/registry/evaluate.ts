@@ -137,14 +137,20 @@ export async function evaluateWavefronts(
 
   // Maps of every wavefront: row-major S x [c_x map, c_y map].
   let maps: Float64Array;
-  if (options.pool && S >= POOL_BATCH_THRESHOLD) {
-    // A getter starts the pool only when a batch first needs it.
-    const pool = typeof options.pool === "function" ? options.pool() : options.pool;
-    maps = await pool.evaluateBatch(model, coefficients);
-  } else {
-    maps = new Float64Array(S * 2 * nodes);
-    for (let i = 0; i < S; i++) evaluateInto(model, coefficients.subarray(i * J, (i + 1) * J), maps.subarray(i * 2 * nodes, (i + 1) * 2 * nodes));
-    checkFinite(maps);
+  try {
+    if (options.pool && S >= POOL_BATCH_THRESHOLD) {
+      // A getter starts the pool only when a batch first needs it.
+      const pool = typeof options.pool === "function" ? options.pool() : options.pool;
+      maps = await pool.evaluateBatch(model, coefficients);
+    } else {
+      maps = new Float64Array(S * 2 * nodes);
+      for (let i = 0; i < S; i++) evaluateInto(model, coefficients.subarray(i * J, (i + 1) * J), maps.subarray(i * 2 * nodes, (i + 1) * 2 * nodes));
+      checkFinite(maps);
+    }
+  } catch (error) {
+    // Coefficients so large that the polynomial overflows: the client's numbers, not a server fault.
+    if (error instanceof RangeError) throw new UnprocessableError(`The wavefronts cannot be evaluated: ${error.message}.`);
+    throw error;
   }
 
   const results: EvaluationResult[] = new Array(S);
@@ -230,4 +236,23 @@ export function answerStream(answer: EvaluationAnswer): ReadableStream<Uint8Arra
       if (index < answer.results.length) await yieldToLoop();
     },
   });
+}
+
+/**
+ * Load the released versions into the model cache (newest first, as many as the cache holds), so that the first
+ * evaluation after a restart finds its model decoded. Failures are logged, never fatal: requests load on demand.
+ */
+export async function warmModelCache(listReleased: () => Promise<EvaluationTarget[]>, log: (line: string) => void = console.log): Promise<void> {
+  try {
+    const began = performance.now();
+    let loaded = 0;
+    for (const target of await listReleased()) {
+      if (modelCache().bytesUsed > modelCache().maxBytes * 0.8) break;
+      await surrogateFor(target);
+      loaded++;
+    }
+    if (loaded > 0) log(`[stillpoint] ${loaded} released model versions decoded into the cache in ${Math.round(performance.now() - began)} ms`);
+  } catch (error) {
+    log(`[stillpoint] could not warm the model cache: ${(error as Error).message}`);
+  }
 }

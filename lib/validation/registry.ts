@@ -71,3 +71,22 @@ export type RunState = (typeof RUN_STATES)[number];
 
 /** `GET /runs?model=slug`. */
 export const runListQuerySchema = pageQuerySchema.extend({ model: slugSchema.optional() });
+
+/** Body of `POST .../versions/{v}/review` (a comment is required to return a version). */
+export const reviewBodySchema = z
+  .strictObject({
+    decision: z.enum(["approve", "return"], { error: 'decision must be "approve" or "return"' }),
+    comment: z.string({ error: "comment must be a string" }).max(4000, "comment may have at most 4000 characters").nullable().optional(),
+  })
+  .superRefine((body, context) => {
+    if (body.decision === "return" && !body.comment?.trim()) {
+      context.addIssue({ code: "custom", path: ["comment"], message: "Returning a version needs a comment that says what to change." });
+    }
+  });
+
+/** Body of `POST .../versions/{v}/retire`. */
+export const retireBodySchema = z.strictObject({
+  reason: z.string({ error: "reason must be a string" }).trim().min(1, "reason must not be empty").max(2000, "reason may have at most 2000 characters"),
+  sunsetAt: z.iso.datetime({ offset: true, error: "sunsetAt must be an ISO 8601 time such as 2027-03-01T00:00:00Z" }),
+  successorVersion: z.number({ error: "successorVersion must be an integer or null" }).int().positive().nullable(),
+});

@@ -1,5 +1,3 @@
-import { readdirSync, readFileSync, statSync } from "node:fs";
-import path from "node:path";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import type { Actor } from "@/lib/access/actor";
 import { hashPassword } from "@/lib/auth/password";
@@ -14,14 +12,14 @@ import { VELORA_SETUP } from "@/lib/demo/velora";
 import { DEMO_PASSWORD } from "@/seeds/01_demo_accounts";
 import { signIn, startAppServer, type AppServer } from "../helpers/app-server";
 import { actorFor, createTestModel, SMALL_SETUP, SMALL_ZERNIKE } from "../helpers/registry";
-import { REPO_ROOT } from "../helpers/test-database";
+import { apiOperations } from "../helpers/routes";
 
 /**
  * The authorisation matrix of the REST API: every operation found on disk under app/api/v1 (so a new route without a
  * rule here fails) x every kind of caller. Refusals are 401 or 403 problem details that carry nothing but the problem.
  */
 
-type Permission = "public" | "tokens" | "read" | "evaluate" | "train";
+type Permission = "public" | "identity" | "tokens" | "read" | "evaluate" | "train" | "train-or-admin" | "review" | "admin";
 interface Rule {
   permission: Permission;
   /** Refused for a token limited to other models. */
@@ -39,7 +37,7 @@ let counter = 0;
 const unique = () => `${process.pid}-${Date.now().toString(36)}-${counter++}`;
 
 const RULES: Record<string, Rule> = {
-  "GET /api/v1/me": { permission: "tokens", modelScoped: false, path: () => "/api/v1/me" },
+  "GET /api/v1/me": { permission: "identity", modelScoped: false, path: () => "/api/v1/me" },
   "GET /api/v1/openapi.json": { permission: "public", modelScoped: false, path: () => "/api/v1/openapi.json" },
   "POST /api/v1/setups/check": { permission: "train", modelScoped: false, path: () => "/api/v1/setups/check", body: () => VELORA_SETUP },
   "POST /api/v1/tokens": { permission: "tokens", modelScoped: false, path: () => "/api/v1/tokens", body: () => ({ name: "matrix", scopes: ["read"], expiresAt: null, models: null }) },
@@ -48,7 +46,8 @@ const RULES: Record<string, Rule> = {
   "GET /api/v1/setups": { permission: "read", modelScoped: false, path: () => "/api/v1/setups" },
   "POST /api/v1/setups": { permission: "train", modelScoped: false, path: () => "/api/v1/setups", body: () => ({ name: `matrix ${unique()}`, setup: SMALL_SETUP }) },
   "GET /api/v1/models": { permission: "read", modelScoped: false, path: () => "/api/v1/models" },
-  "POST /api/v1/models": { permission: "train", modelScoped: false, path: () => "/api/v1/models", body: () => ({ slug: `matrix-${unique()}`, name: "m", setupId: 1, zernike: SMALL_ZERNIKE }) },
+  // A token limited to some models may not create others.
+  "POST /api/v1/models": { permission: "train", modelScoped: true, path: () => "/api/v1/models", body: () => ({ slug: `matrix-${unique()}`, name: "m", setupId: 1, zernike: SMALL_ZERNIKE }) },
   "GET /api/v1/models/{slug}": { permission: "read", modelScoped: true, path: () => `/api/v1/models/${slug}` },
   "GET /api/v1/models/{slug}/versions": { permission: "read", modelScoped: true, path: () => `/api/v1/models/${slug}/versions` },
   "POST /api/v1/models/{slug}/versions": {
@@ -61,9 +60,21 @@ const RULES: Record<string, Rule> = {
   "GET /api/v1/models/{slug}/versions/{version}": { permission: "read", modelScoped: true, path: () => `/api/v1/models/${slug}/versions/1` },
   "GET /api/v1/models/{slug}/versions/{version}/coefficients": { permission: "read", modelScoped: true, path: () => `/api/v1/models/${slug}/versions/1/coefficients` },
   "POST /api/v1/models/{slug}/versions/{version}/submit": { permission: "train", modelScoped: true, path: () => `/api/v1/models/${slug}/versions/1/submit`, body: () => ({}) },
+  // A reviewer's decision and an admin's retirement: sessions only. The draft is not in review: 409 for those allowed.
+  "POST /api/v1/models/{slug}/versions/{version}/review": {
+    permission: "review", modelScoped: true, path: () => `/api/v1/models/${slug}/versions/1/review`, body: () => ({ decision: "return", comment: "matrix" }),
+  },
+  "POST /api/v1/models/{slug}/versions/{version}/retire": {
+    permission: "admin", modelScoped: true, path: () => `/api/v1/models/${slug}/versions/1/retire`,
+    body: () => ({ reason: "matrix", sunsetAt: "2099-01-01T00:00:00Z", successorVersion: null }),
+  },
   "POST /api/v1/models/{slug}/versions/{version}/evaluate": {
     permission: "evaluate", modelScoped: true, path: () => "/api/v1/models/velora-transmit/versions/2/evaluate",
     body: () => ({ wavefronts: [{ ordering: "noll", coefficientsNm: { "4": 1 } }], output: "summary" }),
+  },
+  "POST /api/v1/models/{slug}/versions/{version}/exact": {
+    permission: "evaluate", modelScoped: true, path: () => "/api/v1/models/velora-transmit/versions/2/exact",
+    body: () => ({ wavefront: { ordering: "noll", coefficientsNm: { "4": 1 } } }),
   },
   "POST /api/v1/models/{slug}/generating-sets": {
     permission: "train", modelScoped: true, path: () => `/api/v1/models/${slug}/generating-sets`,
@@ -76,24 +87,9 @@ const RULES: Record<string, Rule> = {
   "GET /api/v1/models/{slug}/generating-sets": { permission: "read", modelScoped: true, path: () => `/api/v1/models/${slug}/generating-sets` },
   "GET /api/v1/runs": { permission: "read", modelScoped: false, path: () => "/api/v1/runs" },
   "GET /api/v1/runs/{id}": { permission: "read", modelScoped: true, path: () => `/api/v1/runs/${runId}` },
-  "POST /api/v1/runs/{id}/cancel": { permission: "read", modelScoped: true, path: () => `/api/v1/runs/${runId}/cancel`, body: () => ({}) },
+  // Its creator (the demo modeller owns these tokens and queued the run) or an admin.
+  "POST /api/v1/runs/{id}/cancel": { permission: "train-or-admin", modelScoped: true, path: () => `/api/v1/runs/${runId}/cancel`, body: () => ({}) },
 };
-
-/** `METHOD path` of every handler on disk. */
-function operations(): string[] {
-  const found: string[] = [];
-  const walk = (dir: string, segments: string[]) => {
-    for (const entry of readdirSync(dir)) {
-      const full = path.join(dir, entry);
-      if (statSync(full).isDirectory()) walk(full, [...segments, entry.replace(/^\[(.+)\]$/, "{$1}")]);
-      else if (entry === "route.ts") {
-        for (const [, method] of readFileSync(full, "utf8").matchAll(/export const (GET|POST|PUT|PATCH|DELETE)\b/g)) found.push(`${method} /api/v1/${segments.join("/")}`);
-      }
-    }
-  };
-  walk(path.join(REPO_ROOT, "app", "api", "v1"), []);
-  return found.sort();
-}
 
 type Caller =
   | { kind: "anonymous" }
@@ -126,12 +122,17 @@ function expected(rule: Rule, caller: Caller): 401 | 403 | "allowed" {
   if (caller.kind === "anonymous" || caller.kind === "header") return 401;
   if (caller.kind === "token") {
     if (caller.state) return 401;
-    if (rule.permission === "tokens") return 403; // tokens cannot manage tokens or act as a session
-    if (!caller.scopes.includes(rule.permission)) return 403;
+    if (rule.permission === "identity") return "allowed";
+    if (rule.permission === "tokens" || rule.permission === "review" || rule.permission === "admin") return 403; // session only
+    const scope = rule.permission === "train-or-admin" ? "train" : rule.permission;
+    if (!caller.scopes.includes(scope)) return 403;
     if (caller.models === "other" && rule.modelScoped) return 403;
     return "allowed"; // the demo modeller owns these tokens
   }
   if (rule.permission === "train") return caller.role === "modeller" ? "allowed" : 403;
+  if (rule.permission === "review") return caller.role === "reviewer" ? "allowed" : 403;
+  if (rule.permission === "admin") return caller.role === "admin" ? "allowed" : 403;
+  if (rule.permission === "train-or-admin") return caller.role === "modeller" || caller.role === "admin" ? "allowed" : 403;
   return "allowed";
 }
 
@@ -188,7 +189,7 @@ afterAll(async () => {
 });
 
 describe("the authorisation matrix of /api/v1", () => {
-  const found = operations();
+  const found = apiOperations();
 
   it("has a rule for every operation on disk, and no rule for one that is gone", () => {
     expect(Object.keys(RULES).sort()).toEqual(found);

@@ -1,26 +1,7 @@
-import { readdirSync, readFileSync, statSync } from "node:fs";
-import path from "node:path";
 import { describe, expect, it } from "vitest";
 import { GET } from "@/app/api/v1/openapi.json/route";
 import { MAX_POINTS_PER_AXIS, MAX_PUPIL_SAMPLES, MIN_POINTS_PER_AXIS, MIN_PUPIL_SAMPLES } from "@/lib/optics/setup";
-import { REPO_ROOT } from "../helpers/test-database";
-
-/** `METHOD path` of every handler exported by a route file under app/api/v1, found on disk. */
-function apiOperations(): string[] {
-  const found: string[] = [];
-  const walk = (dir: string, segments: string[]) => {
-    for (const entry of readdirSync(dir)) {
-      const full = path.join(dir, entry);
-      if (statSync(full).isDirectory()) walk(full, [...segments, entry.replace(/^\[(.+)\]$/, "{$1}")]);
-      else if (entry === "route.ts") {
-        const source = readFileSync(full, "utf8");
-        for (const [, method] of source.matchAll(/export const (GET|POST|PUT|PATCH|DELETE)\b/g)) found.push(`${method} /api/v1/${segments.join("/")}`);
-      }
-    }
-  };
-  walk(path.join(REPO_ROOT, "app", "api", "v1"), []);
-  return found.sort();
-}
+import { apiOperations } from "../helpers/routes";
 
 describe("GET /api/v1/openapi.json", () => {
   it("serves an OpenAPI 3.1 document that describes every /api/v1 route handler", async () => {

@@ -133,6 +133,11 @@ describe("evaluating a pinned version", () => {
     });
   });
 
+  it("refuses coefficients so large that the polynomial overflows with 422, not a server error", async () => {
+    const huge = { ordering: "noll", coefficientsNm: { "4": 1e200, "5": 1e200 } };
+    await expect(evaluateWavefronts(viewer, slug, 1, body({ wavefronts: [huge] }))).rejects.toMatchObject({ status: 422, message: expect.stringMatching(/not finite/) });
+  });
+
   it("names a term outside the model's set and an offset outside the map", async () => {
     await expect(evaluateWavefronts(viewer, slug, 1, body({ wavefronts: [wavefront, { ordering: "noll", coefficientsNm: { "11": 1 } }] }))).rejects.toMatchObject({
       status: 422,

@@ -116,6 +116,23 @@ describe("uploaded generating sets", () => {
     expect(surrogate.statistics).toEqual(direct.model.statistics);
   });
 
+  it("train into a failed run that says why, and no version, when the set cannot determine the model", async () => {
+    const slug = await createTestModel(modeller);
+    // Every sample leaves Noll 8 at zero: no fit can tell its coefficient (a rank-deficient design).
+    const set = exactSet(40, 34);
+    for (let s = 0; s < set.count; s++) set.coefficientsNm[s * J + 4] = 0;
+    const maps = runTtlTask({ setup: SMALL_SETUP, nollIndices: SMALL_ZERNIKE.indices, coefficientsNm: set.coefficientsNm, count: set.count });
+    const uploaded = await createGeneratingSet(modeller, slug, { fileName: "flat.npz", bytes: writeNpz(members({ ...set, x: maps.x, y: maps.y })) });
+    const queued = await createTrainingRun(modeller, slug, { order: 1, generatingSet: { design: "uploaded", generatingSetId: uploaded.id }, validationSet: null });
+    const { run } = await waitForRun(modeller, queued.id);
+    expect(run.state).toBe("failed");
+    expect(run.error).toMatch(/design matrix is rank deficient: term Z8 is zero in every sample/);
+    expect(run.version).toBeNull();
+    expect(run.log.at(-1)?.level).toBe("error");
+    const [count] = await db()("model_versions").join("models", "models.id", "model_versions.model_id").where("models.slug", slug).count({ n: "*" });
+    expect(Number(count.n)).toBe(0);
+  });
+
   describe("refuse every malformed file with its reason and store nothing", () => {
     const set = exactSet(30, 33);
     const good = members(set);
@@ -135,7 +152,7 @@ describe("uploaded generating sets", () => {
       ["an infinity", writeNpz({ ...good, coefficients_nm: writeNpy("<f8", [30, J], inf) }), /coefficients_nm holds NaN or infinity \(element 3\)/],
       ["another grid", writeNpz({ ...good, theta_nrad: writeNpy("<f8", [M], shiftedTheta) }), /theta_nrad\[2\] is .* but the model's grid has -30/],
       ["another index set", writeNpz({ ...good, noll_indices: writeNpy("<i4", [J], [4, 5, 6, 7, 9]) }), /must be, as a set, the model's Zernike set/],
-      ["a repeated index", writeNpz({ ...good, noll_indices: writeNpy("<i4", [J], [4, 5, 6, 7, 7]) }), /lists a term more than once/],
+      ["a repeated index", writeNpz({ ...good, noll_indices: writeNpy("<i4", [J], [4, 5, 6, 7, 7]) }), /noll_indices lists Noll term 7 more than once/],
       ["a truncated archive", archive.subarray(0, Math.floor(archive.length / 2)), /not a readable \.npz \(zip\) archive/],
       ["something that is not a zip", new TextEncoder().encode("ttl,x,y\n1,2,3\n"), /not a readable \.npz \(zip\) archive/],
     ];

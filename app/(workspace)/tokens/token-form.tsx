@@ -50,13 +50,13 @@ export function TokenForm({ scopes, models }: { scopes: readonly TokenScope[]; m
     resolver: schemaResolver(createTokenSchema, toInput),
     defaultValues: { name: "", scopes: ["read", "evaluate"], expiresAt: "", models: [] },
   });
-  const { formError, apply } = useActionErrors(setError);
+  const { formError, submit } = useActionErrors(setError);
 
   const onSubmit = handleSubmit(async (values) => {
     setCopied(false);
-    const result = await createTokenAction(values);
-    if (apply(result)) {
-      setCreated({ name: result.data.name, token: result.data.token });
+    const data = await submit(() => createTokenAction(values));
+    if (data) {
+      setCreated({ name: data.name, token: data.token });
       reset();
       router.refresh();
     }
@@ -77,7 +77,8 @@ export function TokenForm({ scopes, models }: { scopes: readonly TokenScope[]; m
     <div className="flex flex-col gap-4">
       {created && (
         <div className="rounded border border-good bg-surface p-3" role="status" data-testid="token-secret">
-          <p className="text-sm font-medium">Token “{created.name}” created. Copy it now: it is not shown again.</p>
+          <p className="text-sm font-medium">Token “{created.name}” created. Copy it now: you will not see it again.</p>
+          <p className="mt-1 text-xs text-muted">Only its hash is stored; if you lose it, revoke it and create another.</p>
           <div className="mt-2 flex items-center gap-2">
             <code className="min-w-0 flex-1 break-all rounded-sm bg-sunken px-2 py-1 font-mono text-xs" data-testid="token-value">
               {created.token}

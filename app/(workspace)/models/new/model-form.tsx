@@ -42,14 +42,14 @@ export function ModelForm({ setups, initialSetupId }: { setups: { id: number; na
     defaultValues: { slug: "", name: "", description: "", setupId: initialSetupId, zernike: { ordering: "noll", indices: "4-36" } },
     mode: "onTouched",
   });
-  const { formError, apply } = useActionErrors(setError);
+  const { formError, submit } = useActionErrors(setError);
   const indicesText = useWatch({ control, name: "zernike.indices" });
   const ordering = useWatch({ control, name: "zernike.ordering" });
   const count = parseIndexList(indicesText ?? "")?.length ?? null;
 
   const onSubmit = handleSubmit(async (values) => {
-    const result = await createModelAction(values);
-    if (apply(result)) router.push(result.data.next);
+    const data = await submit(() => createModelAction(values));
+    if (data) router.push(data.next);
   });
 
   const e = (path: string) => errorAt(errors, path);

@@ -37,8 +37,12 @@ export function RunProgress({ initial, mayCancel }: { initial: RunDetail; mayCan
   async function cancel() {
     setCancelling(true);
     setCancelError(null);
-    const result = await cancelRunAction(run.id);
-    if (!result.ok) setCancelError(result.formError ?? "The run could not be cancelled.");
+    try {
+      const result = await cancelRunAction(run.id);
+      if (!result.ok) setCancelError(result.formError ?? "The run could not be cancelled.");
+    } catch {
+      setCancelError("The server did not finish the request; try again in a moment.");
+    }
     await mutate();
     setCancelling(false);
   }

@@ -41,11 +41,11 @@ export function SetupForm({ initial }: { initial: OpticalSetup }) {
     defaultValues: { name: "", setup: initial },
     mode: "onTouched",
   });
-  const { formError, apply } = useActionErrors(setError);
+  const { formError, submit } = useActionErrors(setError);
 
   const onSubmit = handleSubmit(async (values) => {
-    const result = await createSetupAction(values);
-    if (apply(result)) router.push(result.data.next);
+    const data = await submit(() => createSetupAction(values));
+    if (data) router.push(data.next);
   });
 
   const nameError = errorAt(errors, "name");

@@ -11,13 +11,18 @@ export function SubmitForReview({ slug, version }: { slug: string; version: numb
   async function submit() {
     setBusy(true);
     setError(null);
-    const result = await submitForReviewAction(slug, version);
-    if (!result.ok) {
-      setError(result.formError ?? "The version could not be submitted.");
+    try {
+      const result = await submitForReviewAction(slug, version);
+      if (!result.ok) {
+        setError(result.formError ?? "The version could not be submitted.");
+        setBusy(false);
+        return;
+      }
+      router.refresh();
+    } catch {
+      setError("The server did not finish the request; try again in a moment.");
       setBusy(false);
-      return;
     }
-    router.refresh();
   }
   return (
     <div className="flex flex-col items-end gap-1">

@@ -76,7 +76,7 @@ export function TrainingForm({
     },
     mode: "onTouched",
   });
-  const { formError, apply } = useActionErrors(setError);
+  const { formError, submit } = useActionErrors(setError);
   // A set uploaded beside the form arrives with the refreshed props: choose it where nothing was chosen yet.
   const newestSetId = generatingSets[generatingSets.length - 1]?.id;
   useEffect(() => {
@@ -91,8 +91,8 @@ export function TrainingForm({
   });
 
   const onSubmit = handleSubmit(async (values) => {
-    const result = await queueTrainingAction(slug, values);
-    if (apply(result)) router.push(result.data.next);
+    const data = await submit(() => queueTrainingAction(slug, values));
+    if (data) router.push(data.next);
   });
 
   const terms = fullTermCount(termCountJ, Number(order) === 1 ? 1 : 2);
