@@ -33,17 +33,17 @@ def main():
         q, r = np.linalg.qr(design)
         np.linalg.solve(r, q.T @ maps)
 
-    fit_ms = best_ms(3, fit)
+    fit_ms = best_ms(5, fit)
     coefficients = rng.normal(size=(terms, outputs))
     features = rng.normal(size=terms)
     # Per-call timing of many calls (one call is too short for the clock).
     calls = 2000
-    eval_ms = best_ms(3, lambda: [features @ coefficients for _ in range(calls)]) / calls
+    eval_ms = best_ms(5, lambda: [features @ coefficients for _ in range(calls)]) / calls
     pruned = coefficients[:pruned_terms].copy()
     pruned_features = features[:pruned_terms].copy()
-    pruned_ms = best_ms(3, lambda: [pruned_features @ pruned for _ in range(calls)]) / calls
+    pruned_ms = best_ms(5, lambda: [pruned_features @ pruned for _ in range(calls)]) / calls
     batch = rng.normal(size=(5000, terms))
-    batch_ms = best_ms(3, lambda: batch @ coefficients)
+    batch_ms = best_ms(5, lambda: batch @ coefficients)
     print(json.dumps({
         "numpyVersion": np.__version__,
         "fitMs": fit_ms,

@@ -1,3 +1,4 @@
+import { kernelInstance } from "../kernels/instance.ts";
 import type { HouseholderQr } from "./householderQr.ts";
 
 /**
@@ -9,10 +10,33 @@ import type { HouseholderQr } from "./householderQr.ts";
  * @param qr factorisation from `householderQr`
  * @param maxIterations upper bound on power-method steps for each end of the spectrum
  * @throws {RangeError} "maxIterations must be a positive integer"
+ * The iterations run in the float64 SIMD kernel of `lib/kernels` where WebAssembly is available, else in
+ * {@link conditionNumberReference}.
  * Source: Golub and Van Loan, Matrix Computations, 4th ed., section 8.2.1 (power method) and
  * section 3.5.4 (condition estimation via the triangular factor).
  */
 export function conditionNumber(qr: HouseholderQr, maxIterations = 300): number {
+  if (!Number.isInteger(maxIterations) || maxIterations < 1) {
+    throw new RangeError("maxIterations must be a positive integer");
+  }
+  const { rows, cols: n, factors } = qr;
+  for (let k = 0; k < n; k++) if (factors[k * rows + k] === 0) return Infinity;
+  const kernels = kernelInstance();
+  if (!kernels) return conditionNumberReference(qr, maxIterations);
+  kernels.begin();
+  const rr = kernels.scratch(n * n * 8);
+  const work = kernels.scratch(3 * n * 8);
+  const heap = kernels.f64;
+  const base = rr >> 3;
+  heap.fill(0, base, base + n * n);
+  for (let i = 0; i < n; i++) for (let j = i; j < n; j++) heap[base + i * n + j] = factors[j * rows + i];
+  const sigmaMaxSquared = kernels.exports.dominantEigenvalue(rr, n, 0, maxIterations, work);
+  const sigmaMinInverseSquared = kernels.exports.dominantEigenvalue(rr, n, 1, maxIterations, work);
+  return Math.sqrt(sigmaMaxSquared * sigmaMinInverseSquared);
+}
+
+/** The TypeScript reference of {@link conditionNumber}: same arguments, checks and iterations. */
+export function conditionNumberReference(qr: HouseholderQr, maxIterations = 300): number {
   if (!Number.isInteger(maxIterations) || maxIterations < 1) {
     throw new RangeError("maxIterations must be a positive integer");
   }

@@ -1,4 +1,5 @@
-import { multiplyPackedInto, packColumns } from "./matrixProduct.ts";
+import { kernelInstance } from "../kernels/instance.ts";
+import { multiplyPackedIntoReference as multiplyPackedInto, packColumns } from "./matrixProduct.ts";
 
 /** A Householder QR factorisation of a tall matrix, in LAPACK's compact form (column-major). */
 export interface HouseholderQr {
@@ -20,13 +21,47 @@ export interface HouseholderQr {
  * @param cols number of columns n (n >= 1)
  * @throws {RangeError} "matrix must have rows >= cols >= 1" or "matrix length must equal rows * cols"
  * @throws {RangeError} "matrix entries must be finite numbers"
+ * Runs the float64 SIMD kernels of `lib/kernels` (same blocked algorithm, the trailing update by the blocked
+ * product) where WebAssembly is available, else {@link householderQrReference}.
  * Source: G. H. Golub and C. F. Van Loan, Matrix Computations, 4th ed., Algorithm 5.2.1 (Householder QR).
  */
 export function householderQr(matrix: ArrayLike<number>, rows: number, cols: number): HouseholderQr {
+  checkMatrix(matrix, rows, cols);
+  const kernels = kernelInstance();
+  if (!kernels) return householderQrReference(matrix, rows, cols);
+  kernels.begin();
+  const a = kernels.scratch(rows * cols * 8);
+  const tau = kernels.scratch(cols * 8);
+  const work = kernels.scratch(kernels.exports.qrWorkBytes(rows, cols, 0));
+  const heap = kernels.f64;
+  const base = a >> 3;
+  for (let i = 0; i < rows; i++) {
+    for (let j = 0; j < cols; j++) {
+      const value = matrix[i * cols + j];
+      if (!Number.isFinite(value)) throw new RangeError("matrix entries must be finite numbers");
+      heap[base + j * rows + i] = value;
+    }
+  }
+  kernels.exports.qrFactor(a, rows, cols, tau, work);
+  const after = kernels.f64;
+  return {
+    rows,
+    cols,
+    factors: after.slice(base, base + rows * cols),
+    tau: after.slice(tau >> 3, (tau >> 3) + cols),
+  };
+}
+
+function checkMatrix(matrix: ArrayLike<number>, rows: number, cols: number): void {
   if (!Number.isInteger(rows) || !Number.isInteger(cols) || cols < 1 || rows < cols) {
     throw new RangeError("matrix must have rows >= cols >= 1");
   }
   if (matrix.length !== rows * cols) throw new RangeError("matrix length must equal rows * cols");
+}
+
+/** The TypeScript reference of {@link householderQr}: same arguments, checks and algorithm. */
+export function householderQrReference(matrix: ArrayLike<number>, rows: number, cols: number): HouseholderQr {
+  checkMatrix(matrix, rows, cols);
   const a = new Float64Array(rows * cols);
   for (let i = 0; i < rows; i++) {
     for (let j = 0; j < cols; j++) {
@@ -166,14 +201,40 @@ function applyBlockToTrailingColumns(qr: HouseholderQr, k0: number, kb: number):
  * @param qr the factorisation from {@link householderQr}
  * @param rhs row-major `qr.rows x rhsCount`, overwritten
  * @throws {RangeError} "right-hand side length must equal rows * rhsCount"
+ * Runs the float64 SIMD kernels of `lib/kernels` where WebAssembly is available, else
+ * {@link applyQTransposeInPlaceReference}.
  * Source: R. Schreiber and C. Van Loan, "A storage-efficient WY representation for products of Householder
  * transformations", SIAM J. Sci. Stat. Comput. 10(1), 53-57 (1989); LAPACK `dlarft`/`dlarfb`.
  */
 export function applyQTransposeInPlace(qr: HouseholderQr, rhs: Float64Array, rhsCount: number): void {
-  const { rows, cols } = qr;
-  if (!Number.isInteger(rhsCount) || rhsCount < 0 || rhs.length !== rows * rhsCount) {
+  checkRhs(qr, rhs, rhsCount);
+  if (rhsCount === 0) return;
+  const kernels = kernelInstance();
+  if (!kernels) return applyQTransposeInPlaceReference(qr, rhs, rhsCount);
+  const { rows, cols, factors, tau } = qr;
+  kernels.begin();
+  const a = kernels.scratch(rows * cols * 8);
+  const t = kernels.scratch(cols * 8);
+  const b = kernels.scratch(rows * rhsCount * 8);
+  const work = kernels.scratch(kernels.exports.qrWorkBytes(rows, cols, rhsCount));
+  const heap = kernels.f64;
+  heap.set(factors, a >> 3);
+  heap.set(tau, t >> 3);
+  heap.set(rhs, b >> 3);
+  kernels.exports.applyQTranspose(a, rows, cols, t, b, rhsCount, work);
+  rhs.set(kernels.f64.subarray(b >> 3, (b >> 3) + rows * rhsCount));
+}
+
+function checkRhs(qr: HouseholderQr, rhs: Float64Array, rhsCount: number): void {
+  if (!Number.isInteger(rhsCount) || rhsCount < 0 || rhs.length !== qr.rows * rhsCount) {
     throw new RangeError("right-hand side length must equal rows * rhsCount");
   }
+}
+
+/** The TypeScript reference of {@link applyQTransposeInPlace}. */
+export function applyQTransposeInPlaceReference(qr: HouseholderQr, rhs: Float64Array, rhsCount: number): void {
+  const { cols } = qr;
+  checkRhs(qr, rhs, rhsCount);
   if (rhsCount === 0) return;
   for (let k0 = 0; k0 < cols; k0 += BLOCK) {
     const kb = Math.min(BLOCK, cols - k0);
@@ -204,13 +265,38 @@ export function applyQTransposeInPlace(qr: HouseholderQr, rhs: Float64Array, rhs
  *
  * @returns `X`, row-major `cols x rhsCount`
  * @throws {RangeError} "R is singular" when a diagonal entry is zero
+ * Runs the float64 SIMD kernels of `lib/kernels` where WebAssembly is available, else
+ * {@link solveUpperTriangularReference}.
  * Source: Golub and Van Loan, Matrix Computations, 4th ed., Algorithm 3.1.2 (row-oriented back substitution)
  * and section 3.1.4 (block triangular solves).
  */
 export function solveUpperTriangular(qr: HouseholderQr, qtRhs: Float64Array, rhsCount: number): Float64Array {
+  checkTriangular(qr, qtRhs, rhsCount);
+  const kernels = kernelInstance();
+  if (!kernels) return solveUpperTriangularReference(qr, qtRhs, rhsCount);
+  const { rows, cols, factors } = qr;
+  if (rhsCount === 0) return new Float64Array(0);
+  kernels.begin();
+  const a = kernels.scratch(rows * cols * 8);
+  const x = kernels.scratch(cols * rhsCount * 8);
+  const work = kernels.scratch(kernels.exports.qrWorkBytes(rows, cols, rhsCount));
+  const heap = kernels.f64;
+  heap.set(factors, a >> 3);
+  heap.set(qtRhs.subarray(0, cols * rhsCount), x >> 3);
+  kernels.exports.solveUpper(a, rows, cols, x, rhsCount, work);
+  return kernels.f64.slice(x >> 3, (x >> 3) + cols * rhsCount);
+}
+
+function checkTriangular(qr: HouseholderQr, qtRhs: Float64Array, rhsCount: number): void {
   const { rows, cols, factors } = qr;
   if (qtRhs.length < cols * rhsCount) throw new RangeError("right-hand side length must equal rows * rhsCount");
   for (let k = 0; k < cols; k++) if (factors[k * rows + k] === 0) throw new RangeError("R is singular");
+}
+
+/** The TypeScript reference of {@link solveUpperTriangular}. */
+export function solveUpperTriangularReference(qr: HouseholderQr, qtRhs: Float64Array, rhsCount: number): Float64Array {
+  const { rows, cols, factors } = qr;
+  checkTriangular(qr, qtRhs, rhsCount);
   const x = qtRhs.slice(0, cols * rhsCount);
   const blockRows = 64;
   for (let end = cols; end > 0; end -= blockRows) {

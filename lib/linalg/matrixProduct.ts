@@ -1,3 +1,5 @@
+import { kernelInstance, MODE_SET, MODE_SUBTRACT } from "../kernels/instance.ts";
+
 /** Width of the column panels of a packed right-hand matrix (the register block of the product kernel). */
 export const PANEL_WIDTH = 4;
 
@@ -40,15 +42,53 @@ const ROW_CHUNK = 64;
 /**
  * `out[i][j] = sum_k left[i][k] right[k][j]` for rows `rowStart <= i < rowEnd` of the row-major `left`
  * (`rows x inner`), with `right` packed by {@link packColumns}; `out` is row-major `rows x right.cols`.
- * Rows are taken in chunks of 64 that stay in cache; each column panel is read once per chunk and reused by
- * all its row blocks (not re-streamed for every 4 rows), and the
- * innermost kernel keeps a 4 x 4 block of the result in local variables. With `subtract` the product is
- * subtracted from `out` instead of written to it (`out -= left right`).
+ * With `subtract` the product is subtracted from `out` instead of written to it (`out -= left right`).
+ * Runs the float64 SIMD kernel of `lib/kernels` (blocked, 4 x 4 register tile) where WebAssembly is available,
+ * else {@link multiplyPackedIntoReference}; the two agree to rounding (each output is one inner product,
+ * summed in a different order).
  *
  * @throws {RangeError} "left length must equal rows * inner" / "out length must equal rows * cols"
  * Source: Goto and van de Geijn (2008), sections 4-6 (blocked product with a register micro-kernel).
  */
 export function multiplyPackedInto(
+  left: Float64Array,
+  rows: number,
+  right: PackedColumns,
+  out: Float64Array,
+  rowStart = 0,
+  rowEnd = rows,
+  subtract = false,
+): void {
+  const { inner, cols, data } = right;
+  if (left.length !== rows * inner) throw new RangeError("left length must equal rows * inner");
+  if (out.length !== rows * cols) throw new RangeError("out length must equal rows * cols");
+  const kernels = kernelInstance();
+  if (!kernels) {
+    multiplyPackedIntoReference(left, rows, right, out, rowStart, rowEnd, subtract);
+    return;
+  }
+  const count = rowEnd - rowStart;
+  if (count <= 0 || cols === 0) return;
+  kernels.begin();
+  const a = kernels.scratch(count * inner * 8);
+  const b = kernels.scratch(data.length * 8);
+  const c = kernels.scratch(count * cols * 8);
+  const work = kernels.scratch(kernels.exports.gemmWorkBytes());
+  const heap = kernels.f64;
+  heap.set(left.subarray(rowStart * inner, rowEnd * inner), a >> 3);
+  heap.set(data, b >> 3);
+  const outRows = out.subarray(rowStart * cols, rowEnd * cols);
+  if (subtract) heap.set(outRows, c >> 3);
+  kernels.exports.gemmF64(count, cols, inner, a, inner, 0, b, inner * PANEL_WIDTH, c, cols, subtract ? MODE_SUBTRACT : MODE_SET, work);
+  outRows.set(kernels.f64.subarray(c >> 3, (c >> 3) + count * cols));
+}
+
+/**
+ * The TypeScript reference of {@link multiplyPackedInto} (same arguments, same checks): rows in chunks of 64 that
+ * stay in cache; each column panel is read once per chunk and reused by all its row blocks, and the innermost
+ * kernel keeps a 4 x 4 block of the result in local variables. The WebAssembly kernel is tested against it.
+ */
+export function multiplyPackedIntoReference(
   left: Float64Array,
   rows: number,
   right: PackedColumns,

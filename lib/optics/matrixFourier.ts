@@ -16,6 +16,8 @@
  * Numerical Recipes, 3rd ed., section 12.3); the matrix (non-FFT) form of the
  * transform follows R. Soummer et al., Opt. Express 15, 15935 (2007).
  */
+import { kernelInstance } from "../kernels/instance.ts";
+
 export interface FoldedKernels {
   /** Far-field nodes per axis, M (odd). */
   readonly nodes: number;
@@ -64,6 +66,64 @@ export function foldedKernels(waveNumberPerM: number, thetaRad: ArrayLike<number
  * for every p of the full far-field grid. Outputs go to `out[p * stride + offset]`.
  */
 export function foldedTransform(
+  k: FoldedKernels,
+  count: number,
+  pRe: Float64Array, pIm: Float64Array, qRe: Float64Array, qIm: Float64Array,
+  outRe: Float64Array, outIm: Float64Array,
+  momentRe: Float64Array | null, momentIm: Float64Array | null,
+  stride: number, offset: number,
+): void {
+  const kernels = kernelInstance();
+  if (!kernels) {
+    foldedTransformReference(k, count, pRe, pIm, qRe, qIm, outRe, outIm, momentRe, momentIm, stride, offset);
+    return;
+  }
+  const { pairs, nodes, halfNodes } = k;
+  const plane = halfNodes * pairs;
+  // The four kernels stay in the module's memory (one resident block per FoldedKernels object).
+  const kp = kernels.resident(k, 4 * plane * 8, (ptr) => {
+    const heap = kernels.f64;
+    const base = ptr >> 3;
+    heap.set(k.c, base);
+    heap.set(k.s, base + plane);
+    heap.set(k.cx, base + 2 * plane);
+    heap.set(k.sx, base + 3 * plane);
+  });
+  const withMoment = momentRe !== null && momentIm !== null;
+  const input = kernels.scratch(4 * pairs * 8);
+  const sums = kernels.scratch(halfNodes * 8 * 8);
+  const heap = kernels.f64;
+  const i0 = input >> 3, i1 = i0 + pairs, i2 = i1 + pairs, i3 = i2 + pairs;
+  for (let q = 0; q < count; q++) {
+    heap[i0 + q] = pRe[q];
+    heap[i1 + q] = pIm[q];
+    heap[i2 + q] = qRe[q];
+    heap[i3 + q] = qIm[q];
+  }
+  kernels.exports.foldedSums(halfNodes, pairs, count, kp, input, input + pairs * 8, input + 2 * pairs * 8, input + 3 * pairs * 8, withMoment ? 1 : 0, sums);
+  let o = sums >> 3;
+  for (let p = 0; p < halfNodes; p++, o += 8) {
+    const mirror = nodes - 1 - p;
+    const a1 = heap[o], a2 = heap[o + 1], a3 = heap[o + 2], a4 = heap[o + 3];
+    if (withMoment) {
+      const b1 = heap[o + 4], b2 = heap[o + 5], b3 = heap[o + 6], b4 = heap[o + 7];
+      momentRe![p * stride + offset] = b1 + b2;
+      momentIm![p * stride + offset] = b3 - b4;
+      momentRe![mirror * stride + offset] = b1 - b2;
+      momentIm![mirror * stride + offset] = b3 + b4;
+    }
+    outRe[p * stride + offset] = a1 + a2;
+    outIm[p * stride + offset] = a3 - a4;
+    outRe[mirror * stride + offset] = a1 - a2;
+    outIm[mirror * stride + offset] = a3 + a4;
+  }
+}
+
+/**
+ * The TypeScript reference of {@link foldedTransform} (same arguments and results to rounding: the WebAssembly
+ * kernel sums pairs of samples in two f64x2 lanes, so its additions come in another order).
+ */
+export function foldedTransformReference(
   k: FoldedKernels,
   count: number,
   pRe: Float64Array, pIm: Float64Array, qRe: Float64Array, qIm: Float64Array,

@@ -1,8 +1,10 @@
+import { kernelInstance, MODE_SET, type KernelInstance } from "../kernels/instance.ts";
+import { packColumns, type PackedColumns } from "../linalg/index.ts";
+import { multiplyPackedIntoReference } from "../linalg/matrixProduct.ts";
 import { requireFiniteCoefficients } from "../optics/checks.ts";
-import { multiplyPackedInto, packColumns, type PackedColumns } from "../linalg/index.ts";
 import { interpolateMap } from "./interpolate.ts";
 import type { SurrogateModel } from "./model.ts";
-import { compileTerms, featureMatrix, featuresInto, type CompiledTerms } from "./terms.ts";
+import { compileTerms, featuresInto, type CompiledTerms } from "./terms.ts";
 import { validityWarnings } from "./validity.ts";
 
 interface Prepared {
@@ -11,6 +13,8 @@ interface Prepared {
   features: Float64Array;
   packed: PackedColumns | null;
   interleaved: Float64Array | null;
+  /** True when every coefficient is a float32 value (a stored model): the kernels then compute in float32. */
+  storedAsFloat32: boolean;
 }
 
 const prepared = new WeakMap<SurrogateModel, Prepared>();
@@ -29,6 +33,7 @@ function prepare(model: SurrogateModel): Prepared {
       features: new Float64Array(Math.ceil(terms.count / TERM_BLOCK) * TERM_BLOCK),
       packed: null,
       interleaved: null,
+      storedAsFloat32: isFloat32Exact(model.coefficients),
     };
     prepared.set(model, entry);
   }
@@ -79,8 +84,12 @@ function interleaved(model: SurrogateModel, entry: Prepared): Float64Array {
 
 /**
  * Full surrogate map of one wavefront: `out[p] = sum_t f_t(a) C[t][p]` for all `2 M^2` outputs
- * (`[c_x map, c_y map]`, pm/nrad): one pass over the outputs per block of 16 terms, reading the
- * interleaved copy of the coefficients.
+ * (`[c_x map, c_y map]`, pm/nrad), as a matrix-vector product by the SIMD kernel of `lib/kernels`.
+ * A stored model (every coefficient a float32, see `roundToStored`) is evaluated in float32: the features are
+ * rounded to float32 and each output is a float32 inner product of length T, so that
+ * `|out - exact| <= gamma_(T+1) sum_t |f_t| |C[t][p]|`, `gamma_n = n u / (1 - n u)`, `u = 2^-24`
+ * (N. J. Higham, Accuracy and Stability of Numerical Algorithms, 2nd ed., section 3.1, eq. 3.5); other models
+ * are evaluated in float64. Without WebAssembly the float64 TypeScript loop over an interleaved copy runs.
  *
  * @param coefficientsNm in the model's Noll order, nm RMS
  * @param out length `2 M^2`, overwritten
@@ -94,7 +103,80 @@ export function evaluateInto(model: SurrogateModel, coefficientsNm: ArrayLike<nu
   const P = 2 * model.pointsPerAxis * model.pointsPerAxis;
   if (out.length !== P) throw new RangeError("out must have 2 M^2 entries");
   featuresInto(terms, coefficientsNm, f);
-  accumulateInterleaved(interleaved(model, entry), f, P, out);
+  const kernels = kernelInstance();
+  const T = terms.count;
+  if (!kernels || !inFloat32Range(f, 0, T, entry)) {
+    accumulateInterleaved(interleaved(model, entry), f, P, out);
+    return;
+  }
+  const b = residentCoefficients(kernels, model, entry);
+  const single = entry.storedAsFloat32;
+  const size = single ? 4 : 8;
+  const width = single ? F32_PANEL : F64_PANEL;
+  const fp = kernels.scratch(T * size);
+  const op = kernels.scratch(Math.ceil(P / width) * width * size);
+  if (single) {
+    const heap = kernels.f32;
+    const base = fp >> 2;
+    for (let t = 0; t < T; t++) heap[base + t] = f[t];
+    kernels.exports.gemvF32(T, P, fp, b, T * width, op);
+    const o = op >> 2;
+    for (let p = 0; p < P; p++) out[p] = heap[o + p];
+  } else {
+    const heap = kernels.f64;
+    const base = fp >> 3;
+    for (let t = 0; t < T; t++) heap[base + t] = f[t];
+    kernels.exports.gemvF64(T, P, fp, b, T * width, op);
+    const o = op >> 3;
+    for (let p = 0; p < P; p++) out[p] = heap[o + p];
+  }
+}
+
+/** Column panel widths of the kernels' packed coefficients: two 128-bit vectors of float32 or of float64. */
+const F32_PANEL = 8;
+const F64_PANEL = 4;
+
+/** Largest feature magnitude sent to the float32 kernels (2^100): far inside float32 range, so no overflow. */
+const FLOAT32_FEATURE_LIMIT = 2 ** 100;
+
+/** Whether every value is exactly a float32 (true for coefficients read from a model file, see roundToStored). */
+function isFloat32Exact(values: Float64Array): boolean {
+  for (let i = 0; i < values.length; i++) if (Math.fround(values[i]) !== values[i]) return false;
+  return true;
+}
+
+/**
+ * Whether features f[from .. to) can go through the float32 kernels: always for a float64 model, and for a
+ * stored model while no feature is beyond {@link FLOAT32_FEATURE_LIMIT} (the float64 reference takes those, so
+ * a huge wavefront overflows, or not, exactly as it did before).
+ */
+function inFloat32Range(f: Float64Array, from: number, to: number, entry: Prepared): boolean {
+  if (!entry.storedAsFloat32) return true;
+  for (let i = from; i < to; i++) if (!(Math.abs(f[i]) <= FLOAT32_FEATURE_LIMIT)) return false;
+  return true;
+}
+
+/**
+ * The model's coefficients packed in column panels inside the kernel module's memory (float32 for a stored
+ * model, float64 otherwise), made once per model and thread. Starts a kernel call (see KernelInstance).
+ */
+function residentCoefficients(kernels: KernelInstance, model: SurrogateModel, entry: Prepared): number {
+  const T = entry.terms.count;
+  const P = 2 * model.pointsPerAxis * model.pointsPerAxis;
+  const single = entry.storedAsFloat32;
+  const width = single ? F32_PANEL : F64_PANEL;
+  const size = single ? 4 : 8;
+  const bytes = Math.ceil(P / width) * width * T * size;
+  return kernels.resident(entry, bytes, (ptr) => {
+    const source = kernels.scratch(T * P * size);
+    if (single) {
+      kernels.f32.set(model.coefficients, source >> 2);
+      kernels.exports.packPanelsF32(source, P, 0, T, P, ptr, T * width);
+    } else {
+      kernels.f64.set(model.coefficients, source >> 3);
+      kernels.exports.packPanelsF64(source, P, 0, T, P, ptr, T * width);
+    }
+  });
 }
 
 /** `out[p] = sum_t f[t] c[t][p]` over the interleaved layout; a small function of its own so the JIT keeps it tight. */
@@ -150,8 +232,9 @@ export function packedCoefficients(model: SurrogateModel): PackedColumns {
 
 /**
  * Surrogate maps of many wavefronts as one matrix product: features `F` (S x T) times coefficients (T x 2 M^2),
- * with the register-blocked kernel of `lib/linalg`. Rows `[rowStart, rowEnd)` only, so that threads can share
- * the work.
+ * by the blocked SIMD kernel of `lib/kernels` (float32 for a stored model, with the error bound of
+ * {@link evaluateInto}; float64 otherwise). Rows `[rowStart, rowEnd)` only, so that threads can share the work;
+ * each row's result does not depend on how the rows are shared.
  *
  * @param coefficientsNm row-major `S x J`, model Noll order, nm RMS
  * @param out row-major `S x 2 M^2` (`[c_x map, c_y map]` per wavefront), pm/nrad
@@ -170,12 +253,105 @@ export function evaluateBatchInto(
   if (out.length !== samples * P) throw new RangeError("out must have S x 2 M^2 entries");
   const end = rowEnd ?? samples;
   if (end <= rowStart) return;
-  const { terms } = prepare(model);
-  const J = model.nollIndices.length;
-  const slice = Array.prototype.slice.call(coefficientsNm, rowStart * J, end * J) as number[];
-  const features = featureMatrix(terms, slice, J);
-  multiplyPackedInto(features, end - rowStart, packedCoefficients(model), out.subarray(rowStart * P, end * P));
+  runBatch(model, coefficientsNm, rowStart, end, out, null);
 }
+
+/**
+ * Peak |TTL| of each of many wavefronts without keeping their maps: `peaks[s] = max_p |c_p(a_s)|` over both axes
+ * and all nodes (pm/nrad), for rows `[rowStart, rowEnd)`; the same numbers as the largest `|value|` of each row of
+ * {@link evaluateBatchInto} (computed from the same sums, bit for bit), with the maps never leaving the kernel
+ * module. For Monte Carlo runs that need only each wavefront's peak.
+ *
+ * @param coefficientsNm row-major `S x J`, model Noll order, nm RMS
+ * @param peaks length S, pm/nrad
+ * @throws {RangeError} from {@link checkCoefficients}; "peaks must have S entries"; from {@link checkFinite}
+ */
+export function evaluateBatchPeaksInto(
+  model: SurrogateModel,
+  coefficientsNm: ArrayLike<number>,
+  peaks: Float64Array,
+  rowStart = 0,
+  rowEnd?: number,
+): void {
+  const samples = checkCoefficients(model, coefficientsNm, true);
+  if (peaks.length !== samples) throw new RangeError("peaks must have S entries");
+  const end = rowEnd ?? samples;
+  if (end <= rowStart) return;
+  runBatch(model, coefficientsNm, rowStart, end, null, peaks);
+  checkFinite(peaks.subarray(rowStart, end));
+}
+
+/** The chunked batch product behind {@link evaluateBatchInto} (maps) and {@link evaluateBatchPeaksInto} (peaks). */
+function runBatch(
+  model: SurrogateModel,
+  coefficientsNm: ArrayLike<number>,
+  rowStart: number,
+  end: number,
+  maps: Float64Array | null,
+  peaks: Float64Array | null,
+): void {
+  const entry = prepare(model);
+  const { terms } = entry;
+  const J = model.nollIndices.length;
+  const P = 2 * model.pointsPerAxis * model.pointsPerAxis;
+  const T = terms.count;
+  const kernels = kernelInstance();
+  const chunk = Math.min(BATCH_CHUNK, end - rowStart);
+  const features = new Float64Array(chunk * T);
+  const row = new Float64Array(J);
+  // Maps of one chunk when they are computed in TypeScript for the peaks only.
+  let scratchMaps: Float64Array | null = null;
+  const reference = (rows: number, s0: number) => {
+    const target = maps ? maps.subarray(s0 * P, (s0 + rows) * P) : (scratchMaps ??= new Float64Array(chunk * P)).subarray(0, rows * P);
+    multiplyPackedIntoReference(features.subarray(0, rows * T), rows, packedCoefficients(model), target);
+    if (peaks) {
+      for (let s = 0; s < rows; s++) {
+        let peak = 0;
+        for (let p = s * P; p < (s + 1) * P; p++) {
+          const v = Math.abs(target[p]);
+          if (!(v <= peak)) peak = v; // NaN propagates, as in the kernel
+        }
+        peaks[s0 + s] = peak;
+      }
+    }
+  };
+  const single = entry.storedAsFloat32;
+  const size = single ? 4 : 8;
+  const width = single ? F32_PANEL : F64_PANEL;
+  let b = 0, fp = 0, cp = 0, pp = 0, work = 0;
+  if (kernels) {
+    b = residentCoefficients(kernels, model, entry);
+    fp = kernels.scratch(chunk * T * size);
+    cp = kernels.scratch(chunk * P * size);
+    pp = kernels.scratch(chunk * size);
+    work = kernels.scratch(kernels.exports.gemmWorkBytes());
+  }
+  for (let s0 = rowStart; s0 < end; s0 += chunk) {
+    const rows = Math.min(chunk, end - s0);
+    for (let s = 0; s < rows; s++) {
+      for (let k = 0; k < J; k++) row[k] = coefficientsNm[(s0 + s) * J + k];
+      featuresInto(terms, row, features, s * T);
+    }
+    if (!kernels || !inFloat32Range(features, 0, rows * T, entry)) {
+      reference(rows, s0);
+      continue;
+    }
+    const heap = single ? kernels.f32 : kernels.f64;
+    const shift = single ? 2 : 3;
+    heap.set(features.subarray(0, rows * T), fp >> shift);
+    if (single) kernels.exports.gemmF32(rows, P, T, fp, T, 0, b, T * width, cp, P, MODE_SET, work);
+    else kernels.exports.gemmF64(rows, P, T, fp, T, 0, b, T * width, cp, P, MODE_SET, work);
+    if (maps) maps.subarray(s0 * P, (s0 + rows) * P).set(heap.subarray(cp >> shift, (cp >> shift) + rows * P));
+    if (peaks) {
+      if (single) kernels.exports.rowMaxAbsF32(cp, rows, P, P, pp);
+      else kernels.exports.rowMaxAbsF64(cp, rows, P, P, pp);
+      peaks.set(heap.subarray(pp >> shift, (pp >> shift) + rows), s0);
+    }
+  }
+}
+
+/** Wavefronts per kernel call of {@link evaluateBatchInto} (features and results of a chunk stay in cache). */
+const BATCH_CHUNK = 1024;
 
 /** {@link evaluateBatchInto} over all rows, returning a new `S x 2 M^2` array. */
 export function evaluateBatch(model: SurrogateModel, coefficientsNm: ArrayLike<number>): Float64Array {
