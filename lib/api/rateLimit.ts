@@ -46,3 +46,8 @@ export async function limitEvaluation(actor: Actor, wavefronts: number): Promise
     throw rejection;
   }
 }
+
+/** Open the limiter's Redis connection ahead of the first request (server start-up). */
+export function warmRateLimiter(): void {
+  limiter();
+}

@@ -214,6 +214,12 @@ export async function evaluateWavefronts(
  * The answer as JSON, written in pieces with a yield between them: a 10,000-map answer is hundreds of MB of text,
  * which one `JSON.stringify` would build in one blocking go.
  */
+export function answerBody(answer: EvaluationAnswer): string | ReadableStream<Uint8Array> {
+  // A small answer is cheaper as one string than as a stream of pieces.
+  if (answer.results.length <= 64) return JSON.stringify({ ...answer.head, results: answer.results, notice: answer.notice });
+  return answerStream(answer);
+}
+
 export function answerStream(answer: EvaluationAnswer): ReadableStream<Uint8Array> {
   const encoder = new TextEncoder();
   const opening = JSON.stringify(answer.head).slice(0, -1) + ',"results":[';
@@ -248,7 +254,9 @@ export async function warmModelCache(listReleased: () => Promise<EvaluationTarge
     let loaded = 0;
     for (const target of await listReleased()) {
       if (modelCache().bytesUsed > modelCache().maxBytes * 0.8) break;
-      await surrogateFor(target);
+      const model = await surrogateFor(target);
+      // One evaluation compiles the kernels and the evaluation path before a client needs them.
+      evaluateInto(model, new Float64Array(model.nollIndices.length), new Float64Array(2 * model.pointsPerAxis ** 2));
       loaded++;
     }
     if (loaded > 0) log(`[stillpoint] ${loaded} released model versions decoded into the cache in ${Math.round(performance.now() - began)} ms`);

@@ -2,7 +2,7 @@ import { withProblems } from "@/lib/api/problem";
 import { limitEvaluation } from "@/lib/api/rateLimit";
 import { readJson, versionParam } from "@/lib/api/request";
 import { requireActor } from "@/lib/auth/request";
-import { answerStream, evaluateWavefronts } from "@/lib/registry/evaluate";
+import { answerBody, evaluateWavefronts } from "@/lib/registry/evaluate";
 import { serverComputePool } from "@/lib/registry/serverPool";
 import { evaluateBodySchema } from "@/lib/validation/evaluate";
 
@@ -16,7 +16,7 @@ export const POST = withProblems(async (request: Request, { params }: { params: 
   const body = await readJson(request, evaluateBodySchema);
   await limitEvaluation(actor, body.wavefronts.length);
   const answer = await evaluateWavefronts(actor, slug, number, body, { pool: serverComputePool });
-  return new Response(answerStream(answer), {
+  return new Response(answerBody(answer), {
     headers: { "content-type": "application/json", "cache-control": "no-store", ...answer.headers },
   });
 });
