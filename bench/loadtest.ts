@@ -78,7 +78,7 @@ function report(name: string, figure: string, target: string, met: boolean): voi
 }
 
 async function main(): Promise<void> {
-  console.error("[loadtest] starting the test MariaDB and Redis, a fresh database with the demo model (about a minute)");
+  console.error("[loadtest] starting the test MariaDB and Redis, a fresh database with the demo model (about half a minute)");
   run("bash", ["db/mariadb.sh", "start", "test"], "starting MariaDB");
   run("bash", ["db/redis.sh", "start", "test"], "starting Redis");
   run("mariadb", ["--no-defaults", `--socket=${root}/.data/mariadb-test/mariadb.sock`, "-uroot", "-e", `DROP DATABASE IF EXISTS \`${database}\`; CREATE DATABASE \`${database}\` CHARACTER SET utf8mb4 COLLATE utf8mb4_unicode_ci; GRANT ALL PRIVILEGES ON \`${database}%\`.* TO 'app'@'127.0.0.1';`], "creating the database");
