@@ -1,4 +1,5 @@
 import referenceJson from "../fixtures/optics/demo-setup-ttl.json" with { type: "json" };
+import type { ExactComparison } from "@/lib/registry/exact";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { closeDb } from "@/lib/db/knex";
 import { createToken } from "@/lib/db/tokens";
@@ -21,21 +22,8 @@ interface Reference {
 }
 const reference = referenceJson as unknown as Reference;
 
-type Grid = (number | null)[][];
-interface ExactAnswer {
-  model: string;
-  version: number;
-  state: string;
-  coefficientsSha256: string;
-  thetaNrad: number[];
-  exact: { ttlXPmPerNrad: Grid; ttlYPmPerNrad: Grid; peakAbsTtlPmPerNrad: number };
-  surrogate: { ttlXPmPerNrad: number[][]; ttlYPmPerNrad: number[][]; peakAbsTtlPmPerNrad: number };
-  differencePmPerNrad: { x: Grid; y: Grid };
-  maxAbsDifferencePmPerNrad: number;
-  maxAbsDifferenceAt: { thetaXNrad: number; thetaYNrad: number; axis: "x" | "y" } | null;
-  validity: { inRange: boolean; warnings: string[] };
-  notice: string;
-}
+/** The route's answer: the comparison of lib/registry/exact.ts, without the headers it sends separately. */
+type ExactAnswer = Omit<ExactComparison, "headers">;
 
 let server: AppServer;
 let evaluateToken = "";

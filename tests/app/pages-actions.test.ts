@@ -1,5 +1,3 @@
-import { readFileSync } from "node:fs";
-import path from "node:path";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { closeDb, db } from "@/lib/db/knex";
 import { insertRun } from "@/lib/db/runs";
@@ -8,47 +6,13 @@ import { VELORA_SETUP } from "@/lib/demo/velora";
 import { DEMO_PASSWORD } from "@/seeds/01_demo_accounts";
 import { signIn, startAppServer, type AppServer } from "../helpers/app-server";
 import { actorFor, createTestModel } from "../helpers/registry";
-import { REPO_ROOT } from "../helpers/test-database";
+import { actionId, callAction } from "../helpers/server-actions";
 
 // A server action is a public POST endpoint: anyone can call it with its id and any arguments, page or no page.
 // These tests call each registry action the way the framework's client does (POST with a Next-Action header and the
 // arguments as JSON) with a viewer's session and with no session, and check both the answer and that nothing changed.
 
 type Agent = ReturnType<AppServer["agent"]>;
-
-interface ManifestEntry {
-  filename: string;
-  exportedName: string;
-}
-
-/** The id the production build gave an exported server action (.next/server/server-reference-manifest.json). */
-function actionId(filename: string, exportedName: string): string {
-  const manifest = JSON.parse(readFileSync(path.join(REPO_ROOT, ".next/server/server-reference-manifest.json"), "utf8")) as {
-    node: Record<string, ManifestEntry>;
-  };
-  const found = Object.entries(manifest.node).find(([, entry]) => entry.filename === filename && entry.exportedName === exportedName);
-  if (!found) throw new Error(`the build has no server action ${exportedName} in ${filename}`);
-  return found[0];
-}
-
-/** Calls an action as the framework's client does; answers the status and the RSC payload text. */
-async function callAction(agent: Agent, pagePath: string, id: string, args: unknown[]): Promise<{ status: number; text: string; location?: string }> {
-  const response = await agent
-    .post(pagePath)
-    .set("Next-Action", id)
-    .set("Accept", "text/x-component")
-    .set("Content-Type", "text/plain;charset=UTF-8")
-    .send(JSON.stringify(args))
-    .redirects(0)
-    .buffer(true)
-    .parse((res, done) => {
-      let text = "";
-      res.on("data", (chunk: Buffer) => (text += chunk.toString("utf8")));
-      res.on("end", () => done(null, text));
-    });
-  const text = typeof response.body === "string" ? response.body : (response.text ?? "");
-  return { status: response.status, text, location: response.headers.location };
-}
 
 let server: AppServer;
 let viewer: Agent;
