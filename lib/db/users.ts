@@ -110,3 +110,8 @@ export async function createUser(user: NewUser, conn: Knex = db()): Promise<numb
 export async function updateUserName(userId: number, name: string, conn: Knex = db()): Promise<void> {
   await conn("users").where({ id: userId }).update({ name, updated_at: conn.fn.now(3) });
 }
+
+/** Everyone holding a role, by e-mail (the recipients of the mails meant for that role). */
+export async function usersWithRole(role: Role, conn: Knex = db()): Promise<{ id: number; email: string }[]> {
+  return conn("users").join("user_roles", "user_roles.user_id", "users.id").where("user_roles.role", role).select("users.id", "users.email").orderBy("users.email");
+}
