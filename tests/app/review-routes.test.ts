@@ -92,9 +92,12 @@ describe("review through the REST routes", () => {
       expect(mail.text).toContain("Valid up to 10 nm RMS");
       expect(mail.text).toContain(SURROGATE_NOTICE);
     }
-    const everyRequest = await waitForMail((m) => m.subject === `Review requested: ${slug} version 1`, { count: 2 });
-    expect(everyRequest.flatMap((m) => m.envelope.to)).not.toContain("modeller@velora.test");
-    expect(everyRequest.flatMap((m) => m.envelope.to)).toContain(dual.email);
+    // Every other reviewer gets a copy of their own; the author none.
+    await waitForMail((m) => m.subject === `Review requested: ${slug} version 1` && m.envelope.to.includes(dual.email), { count: 2 });
+    const rows = await db()("notifications").where({ version_id: versionId, kind: "version-submitted" });
+    expect(rows.map((r: { recipient: string }) => r.recipient)).not.toContain("modeller@velora.test");
+    const sink = await waitForMail((m) => m.subject === `Review requested: ${slug} version 1`, { count: rows.length });
+    expect(sink.map((m) => m.envelope.to.join()).sort()).toEqual(rows.map((r: { recipient: string }) => r.recipient).sort());
 
     // The modeller hears each decision with the reviewer's comment.
     const [back] = await waitForMail((m) => m.subject === `Returned to draft: ${slug} version 1`);
@@ -107,8 +110,8 @@ describe("review through the REST routes", () => {
     expect(released.envelope.to).toEqual(["modeller@velora.test"]);
     expect(released.text).toContain("Residuals fine now.");
 
-    const rows = await db()("notifications").where({ version_id: versionId, kind: "version-decided" }).orderBy("id");
-    expect(rows.map((r: { recipient: string }) => r.recipient)).toEqual(["modeller@velora.test", "modeller@velora.test"]);
+    const decided = await db()("notifications").where({ version_id: versionId, kind: "version-decided" }).orderBy("id");
+    expect(decided.map((r: { recipient: string }) => r.recipient)).toEqual(["modeller@velora.test", "modeller@velora.test"]);
   });
 
   it("refuses a reviewer's decision on their own version (403), leaving it in review and mailing nobody", async () => {
