@@ -102,7 +102,7 @@ describe("a review in the browser", () => {
       await page.getByTestId("decision-return").check();
       await page.getByRole("button", { name: "Return to draft" }).click();
       await expect(page.locator('[data-field-error="review-comment"]').textContent()).resolves.toBe("Returning a version needs a comment that says what to change.");
-      await page.getByLabel("Comment").fill(comment);
+      await page.getByLabel("Comment", { exact: true }).fill(comment);
       await page.getByRole("button", { name: "Return to draft" }).click();
       await expect.poll(() => page.getByTestId("version-state").textContent(), { timeout: 15_000 }).toBe("draft");
       await expect(page.getByTestId("review-panel").count()).resolves.toBe(0);
@@ -129,7 +129,7 @@ describe("a review in the browser", () => {
       await page.getByTestId("queue-row").filter({ hasText: slug }).getByRole("link").click();
       await page.waitForURL((url) => url.pathname === `/models/${slug}/versions/1`);
       await page.getByTestId("decision-approve").check();
-      await page.getByLabel("Comment").fill("Validated to 30 nm now; released.");
+      await page.getByLabel("Comment", { exact: true }).fill("Validated to 30 nm now; released.");
       await page.getByRole("button", { name: "Approve and release" }).click();
       await expect.poll(() => page.getByTestId("version-state").textContent(), { timeout: 15_000 }).toBe("released");
       await expect(historyStates(page)).resolves.toEqual(["draft", "in-review", "draft", "in-review", "released"]);
