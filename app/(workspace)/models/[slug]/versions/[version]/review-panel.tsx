@@ -40,7 +40,7 @@ export function ReviewPanel({ slug, version }: { slug: string; version: number }
 
   const commentError = errorAt(errors, "comment");
   return (
-    <form onSubmit={onSubmit} noValidate className="flex flex-col gap-3 rounded border border-line bg-surface p-3" aria-label="Review decision" data-testid="review-panel">
+    <form onSubmit={onSubmit} noValidate className="flex max-w-3xl flex-col gap-3 rounded border border-line bg-surface p-3" aria-label="Review decision" data-testid="review-panel">
       <FormError message={formError} />
       <fieldset className="flex flex-col gap-1">
         <legend className="mb-1 text-sm font-medium">Decision</legend>
