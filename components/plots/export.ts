@@ -20,6 +20,8 @@ const STYLE_PROPERTIES = [
   "dominant-baseline",
   "visibility",
   "display",
+  // visx's Text draws each label in a nested <svg> with overflow visible: without it, labels left of x = 0 vanish.
+  "overflow",
 ] as const;
 
 export function downloadBlob(blob: Blob, fileName: string): void {
