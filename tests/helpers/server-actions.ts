@@ -33,3 +33,28 @@ export async function callAction(agent: Agent, pagePath: string, id: string, arg
   const text = typeof response.body === "string" ? response.body : (response.text ?? "");
   return { status: response.status, text, location: response.headers.location };
 }
+
+/**
+ * Calls a server action whose last argument is a FormData (a form's action) as the framework's client does: a
+ * multipart body whose part "0" holds the arguments, the form's fields prefixed "1_" and referred to as "$K1".
+ */
+export async function callFormAction(
+  agent: Agent,
+  pagePath: string,
+  id: string,
+  leading: unknown[],
+  fields: Record<string, string>,
+): Promise<{ status: number; text: string; location?: string }> {
+  let post = agent.post(pagePath).set("Next-Action", id).set("Accept", "text/x-component").field("0", JSON.stringify([...leading, "$K1"]));
+  for (const [name, value] of Object.entries(fields)) post = post.field(`1_${name}`, value);
+  const response = await post
+    .redirects(0)
+    .buffer(true)
+    .parse((res, done) => {
+      let text = "";
+      res.on("data", (chunk: Buffer) => (text += chunk.toString("utf8")));
+      res.on("end", () => done(null, text));
+    });
+  const text = typeof response.body === "string" ? response.body : (response.text ?? "");
+  return { status: response.status, text, location: response.headers.location };
+}
