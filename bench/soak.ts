@@ -46,6 +46,8 @@ const env: NodeJS.ProcessEnv = {
   WORKER_LOCK_MS: "5000",
   WORKER_THREADS: "1",
   SERVER_COMPUTE_THREADS: "1",
+  // Nothing listens there: mail the soak causes waits in its queue (the soak is not about mail).
+  SMTP_PORT: process.env.SOAK_SMTP_PORT ?? "2424",
 };
 delete env.NEXTAUTH_URL;
 if (!/^(127\.0\.0\.1|localhost)$/.test(new URL(base).hostname)) throw new Error("the soak runs on loopback only");
