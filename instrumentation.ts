@@ -1,15 +1,8 @@
 // Runs once when the server starts (Next.js instrumentation hook).
 export async function register(): Promise<void> {
   if (process.env.NEXT_RUNTIME !== "nodejs") return;
-  // Configuration validated before anything else: a bad variable stops the server with a message naming it (Next
-  // itself would log a failed hook and keep serving errors).
-  const { getConfig, requireAuthSecret } = await import("./lib/config");
-  try {
-    requireAuthSecret(getConfig());
-  } catch (error) {
-    console.error(error instanceof Error ? error.message : String(error));
-    process.exit(78); // EX_CONFIG
-  }
+  // Configuration validated before anything else: a bad variable stops the server with a message naming it.
+  (await import("./lib/config/startup")).validateConfigOrExit();
   const [{ warmModelCache }, { releasedEvaluationTargets }, { warmRateLimiter }] = await Promise.all([
     import("./lib/registry/evaluate"),
     import("./lib/db/versions"),

@@ -373,6 +373,8 @@ async function main(): Promise<void> {
   await Promise.all([...traffic, stopper]);
   const trafficSeconds = elapsed();
   log(`traffic stopped after ${samples.length} requests; waiting for the runs in flight`);
+  mkdirSync(`${root}/.data`, { recursive: true });
+  writeFileSync(`${root}/.data/soak-samples-latest.json`, JSON.stringify({ windows, runs, refusedTrainings, faultRuns, samples }));
 
   // Every run must end: succeeded, or failed with a reason.
   const until = performance.now() + 120_000;
@@ -389,11 +391,11 @@ async function main(): Promise<void> {
   }
 
   const integrity = await verifyStoredVersions(db());
-  const soakVersions: { coefficients_sha256: string; blob: number }[] = await db()("model_versions")
+  const soakVersions: { coefficients_sha256: string; has_blob: number }[] = await db()("model_versions")
     .join("models", "models.id", "model_versions.model_id")
     .leftJoin("version_blobs", "version_blobs.version_id", "model_versions.id")
     .where("models.slug", trainSlug)
-    .select("model_versions.coefficients_sha256", db().raw("version_blobs.version_id IS NOT NULL AS blob"));
+    .select("model_versions.coefficients_sha256", db().raw("version_blobs.version_id IS NOT NULL AS has_blob"));
   const uploadsStored: { n: number | string }[] = await db()("generating_sets").join("models", "models.id", "generating_sets.model_id").where("models.slug", trainSlug).count({ n: "*" });
   await closeDb();
 
@@ -467,7 +469,7 @@ async function main(): Promise<void> {
     out(`  run in flight at the ${fault} fault: ${id === null ? "none" : `run ${id}, ${row?.state ?? "?"}${row?.error ? ` (${row.error})` : ""}`}`);
   }
   const distinct = new Set(soakVersions.map((v) => v.coefficients_sha256));
-  out(`Versions of the soak model: ${soakVersions.length}, all with their blob: ${soakVersions.every((v) => Number(v.blob) === 1)}, distinct coefficient checksums: ${distinct.size} (one spec: must be 1)`);
+  out(`Versions of the soak model: ${soakVersions.length}, all with their blob: ${soakVersions.every((v) => Number(v.has_blob) === 1)}, distinct coefficient checksums: ${distinct.size} (one spec: must be 1)`);
   out(`Checksums: ${integrity.checked} versions checked (${Object.entries(integrity.byState).map(([s, n]) => `${n} ${s}`).join(", ")}), ${integrity.failures.length} failures${integrity.failures.length ? `: ${integrity.failures.map((x) => `${x.model} v${x.version}: ${x.reason}`).join("; ")}` : ""}`);
   out(backupLine);
   if (serverLines.length) {
@@ -482,7 +484,7 @@ async function main(): Promise<void> {
     unfinished > 0 && "runs left unfinished",
     integrity.failures.length > 0 && "checksum failures",
     distinct.size > 1 && "one spec stored different coefficients",
-    soakVersions.some((v) => Number(v.blob) !== 1) && "a version without its blob",
+    soakVersions.some((v) => Number(v.has_blob) !== 1) && "a version without its blob",
     badAccepted.length > 0 && "bad uploads accepted",
     restoreFailed && "the backup did not restore verified",
   ].filter(Boolean);
