@@ -1,6 +1,7 @@
 import type { Metadata } from "next";
 import { connection } from "next/server";
 import type { ReactNode } from "react";
+import { BrowserZodConfig } from "@/components/browser-zod-config";
 import { mono, sans } from "./fonts";
 import "./globals.css";
 
@@ -15,7 +16,10 @@ export default async function RootLayout({ children }: { children: ReactNode }) 
   await connection();
   return (
     <html lang="en" className={`${sans.variable} ${mono.variable}`}>
-      <body className="min-h-screen">{children}</body>
+      <body className="min-h-screen">
+        <BrowserZodConfig />
+        {children}
+      </body>
     </html>
   );
 }

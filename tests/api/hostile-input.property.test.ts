@@ -164,6 +164,9 @@ describe("queries and path parameters", () => {
         const response = await fetch(`${server.baseUrl}${url(value)}`, { method, headers: { authorization: `Bearer ${token}` } });
         const body = await response.text();
         if (response.status < 400) return;
+        // Refused by the HTTP layer before any route runs: an empty id is the collection (405, no DELETE there), and
+        // an address over Node's 16 KB header limit is 431. Clear 4xx answers, without a problem document.
+        if ([405, 414, 431].includes(response.status)) return;
         expectProblem(response.status, response.headers.get("content-type"), body, `${name} <- ${value.slice(0, 60)}`);
       }),
       { numRuns: 40 },
