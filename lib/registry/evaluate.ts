@@ -4,7 +4,6 @@ import { evaluatesVersionState, evaluationTarget, loadSurrogateById, type Evalua
 import { ForbiddenError, GoneError, NotFoundError, OutsideValidityRangeError, UnprocessableError } from "../errors.ts";
 import { thetaGridNrad } from "../optics/setup.ts";
 import { wavefrontToVector } from "../optics/wavefront.ts";
-import type { Wavefront } from "../optics/types.ts";
 import type { ComputePool } from "../parallel/computePool.ts";
 import { checkFinite, evaluateInto } from "../surrogate/evaluate.ts";
 import { interpolateMap } from "../surrogate/interpolate.ts";
@@ -114,20 +113,23 @@ export async function evaluateWavefronts(
 
   const issues: { path: string; message: string }[] = [];
   const coefficients = new Float64Array(S * J);
-  body.wavefronts.forEach((wavefront: Wavefront, i) => {
-    try {
-      coefficients.set(wavefrontToVector(wavefront, model.nollIndices), i * J);
-    } catch (error) {
-      issues.push({ path: `wavefronts.${i}.coefficientsNm`, message: (error as Error).message });
+  const warnings: string[][] = new Array(S);
+  for (let start = 0; start < S; start += SLICE) {
+    if (start > 0) await yieldToLoop();
+    for (let i = start; i < Math.min(S, start + SLICE); i++) {
+      try {
+        coefficients.set(wavefrontToVector(body.wavefronts[i], model.nollIndices), i * J);
+        warnings[i] = validityWarnings(model.validity, coefficients.subarray(i * J, (i + 1) * J));
+      } catch (error) {
+        issues.push({ path: `wavefronts.${i}.coefficientsNm`, message: (error as Error).message });
+      }
     }
-  });
+  }
   body.offsetsNrad?.forEach(([tx, ty], k) => {
     if (Math.abs(tx) > h || Math.abs(ty) > h) issues.push({ path: `offsetsNrad.${k}`, message: `offset (${tx}, ${ty}) nrad is outside the map (|theta| <= ${h} nrad)` });
   });
   if (issues.length > 0) throw new UnprocessableError("Some wavefronts or offsets cannot be evaluated on this version; see issues.", issues.slice(0, 100));
 
-  const warnings: string[][] = new Array(S);
-  for (let i = 0; i < S; i++) warnings[i] = validityWarnings(model.validity, coefficients.subarray(i * J, (i + 1) * J));
   if (body.strict) {
     const outside = warnings.map((w, i) => ({ path: `wavefronts.${i}`, message: w.join("; ") })).filter((issue) => issue.message !== "");
     if (outside.length > 0) {
