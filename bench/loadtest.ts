@@ -1,6 +1,7 @@
 // npm run loadtest: the evaluate API under load, against the production build with real MariaDB and Redis and token
 // authentication, on the demo released model (velora-transmit v2: 595 terms, 25 x 25 nodes). It starts what it
-// needs (the test MariaDB and Redis instances, a throw-away database seeded with the demo, `next start`), prints a
+// needs (the test MariaDB and Redis instances, a throw-away database seeded with the demo, the
+// production server of server/main.ts), prints a
 // table of figures against the targets, and stops everything it started. Figures, not assertions: timings on a
 // shared 2-core machine vary by tens of per cent from one minute to the next.
 import { spawn, spawnSync, type ChildProcess } from "node:child_process";
@@ -41,10 +42,15 @@ async function freePort(): Promise<number> {
   });
 }
 
+const plainNext = process.argv.includes("--next-start");
 let server: ChildProcess | null = null;
 async function startServer(port: number): Promise<number> {
   const began = performance.now();
-  server = spawn(`${root}/node_modules/.bin/next`, ["start", "-H", "127.0.0.1", "-p", String(port)], { cwd: root, env, stdio: ["ignore", "ignore", "inherit"] });
+  // The production server of `npm start` (server/main.ts); `--next-start` measures plain `next start` for comparison.
+  const command = plainNext
+    ? [`${root}/node_modules/.bin/next`, "start", "-H", "127.0.0.1", "-p", String(port)]
+    : [process.execPath, "--import", "tsx", `${root}/server/main.ts`, "-H", "127.0.0.1", "-p", String(port)];
+  server = spawn(command[0], command.slice(1), { cwd: root, env, stdio: ["ignore", "ignore", "inherit"] });
   for (;;) {
     try {
       const response = await fetch(`http://127.0.0.1:${port}/api/v1/openapi.json`);
@@ -108,7 +114,7 @@ async function main(): Promise<void> {
   const batch10000 = JSON.stringify({ wavefronts: Array.from({ length: 10000 }, (_, i) => wavefront(i)), output: "summary" });
 
   const startupMs = await startServer(port);
-  console.error(`[loadtest] next start answering after ${fmt(startupMs)} ms`);
+  console.error(`[loadtest] ${plainNext ? "next start" : "server/main.ts"} answering after ${fmt(startupMs)} ms`);
   const t0 = performance.now();
   const first = await fetch(url, { method: "POST", headers, body: single });
   await first.arrayBuffer();
