@@ -43,13 +43,16 @@ async function freePort(): Promise<number> {
 }
 
 const plainNext = process.argv.includes("--next-start");
+// `--cpu-prof DIR`: the server writes a V8 CPU profile there when it stops (open it in Chrome's DevTools).
+const profileIndex = process.argv.indexOf("--cpu-prof");
+const profileArgs = profileIndex > 0 ? ["--cpu-prof", `--cpu-prof-dir=${process.argv[profileIndex + 1]}`] : [];
 let server: ChildProcess | null = null;
 async function startServer(port: number): Promise<number> {
   const began = performance.now();
   // The production server of `npm start` (server/main.ts); `--next-start` measures plain `next start` for comparison.
   const command = plainNext
     ? [`${root}/node_modules/.bin/next`, "start", "-H", "127.0.0.1", "-p", String(port)]
-    : [process.execPath, "--import", "tsx", `${root}/server/main.ts`, "-H", "127.0.0.1", "-p", String(port)];
+    : [process.execPath, ...profileArgs, "--import", "tsx", `${root}/server/main.ts`, "-H", "127.0.0.1", "-p", String(port)];
   server = spawn(command[0], command.slice(1), { cwd: root, env, stdio: ["ignore", "ignore", "inherit"] });
   for (;;) {
     try {
