@@ -128,10 +128,20 @@ async function main(): Promise<void> {
   const cannon = (body: string, connections: number, seconds: number) =>
     autocannon({ url, method: "POST", headers, body, connections, duration: seconds, pipelining: 1 });
   await cannon(single, 10, 2); // warm-up
+  // Closed loop: 50 connections, each sending its next request as soon as the answer arrives; measures capacity.
+  // Its latency is queueing by construction (mean = 50 / throughput), so the latency target is measured open loop:
+  // 1,000 requests/s offered over the same 50 connections, as 50 clients at 20 requests/s each would send them.
   const offsets = await cannon(single, 50, 10);
   if (offsets.non2xx > 0) console.error(`[loadtest] ${offsets.non2xx} non-2xx answers in the single-offset run`);
-  report("single offset, 50 connections: throughput", `${fmt(offsets.requests.average)} req/s`, ">= 1000 req/s", offsets.requests.average >= 1000);
-  report("single offset, 50 connections: p99 latency", `${fmt(offsets.latency.p99)} ms`, "< 25 ms", offsets.latency.p99 < 25);
+  report("single offset, 50 connections flat out: throughput", `${fmt(offsets.requests.average)} req/s (p99 ${fmt(offsets.latency.p99)} ms)`, ">= 1000 req/s", offsets.requests.average >= 1000);
+  const paced = await autocannon({ url, method: "POST", headers, body: single, connections: 50, duration: 10, pipelining: 1, overallRate: 1000 });
+  if (paced.non2xx > 0) console.error(`[loadtest] ${paced.non2xx} non-2xx answers in the paced single-offset run`);
+  report(
+    "single offset, 1,000 req/s offered over 50 connections: p99 latency",
+    `${fmt(paced.latency.p99)} ms (p50 ${fmt(paced.latency.p50)} ms, ${fmt(paced.requests.average)} req/s served)`,
+    "< 25 ms",
+    paced.latency.p99 < 25 && paced.requests.average >= 950,
+  );
 
   const maps = await cannon(full, 1, 5);
   report("full map (595 terms, 25 x 25): p50 latency", `${fmt(maps.latency.p50)} ms`, "< 10 ms", maps.latency.p50 < 10);
