@@ -1,6 +1,8 @@
 import http from "node:http";
 import type { AddressInfo } from "node:net";
 import next from "next";
+import { releasedEvaluationTargets } from "../lib/db/versions.ts";
+import { warmModelCache } from "../lib/registry/evaluate.ts";
 import { directRoute } from "./direct-routes.ts";
 
 export interface AppServerOptions {
@@ -26,6 +28,9 @@ export interface RunningAppServer {
 export async function startAppServer(options: AppServerOptions): Promise<RunningAppServer> {
   const app = next({ dev: false, dir: options.dir, hostname: options.hostname, port: options.port, quiet: options.quiet });
   await app.prepare();
+  // instrumentation.ts warms the framework's copy of lib/; the direct path runs this server's own copy, whose
+  // kernels and packed coefficients are made on first use: warm them too (the decoded models are shared).
+  void warmModelCache(() => releasedEvaluationTargets(), options.quiet ? () => {} : console.log);
   const handle = app.getRequestHandler();
   const server = http.createServer((req, res) => {
     const direct = directRoute(req);
