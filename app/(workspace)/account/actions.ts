@@ -5,8 +5,22 @@ import { hashPassword, verifyPassword } from "@/lib/auth/password";
 import { keepCurrentSession } from "@/lib/auth/reissue";
 import { requireUser } from "@/lib/auth/session";
 import { recordAuditEvent } from "@/lib/db/audit";
-import { findCredentialsByEmail, setPasswordHash, updateUserName } from "@/lib/db/users";
+import { findCredentialsByEmail, setPasswordHash, updateUserName, type UserSummary } from "@/lib/db/users";
+import { UnauthenticatedError } from "@/lib/errors";
 import { changePasswordSchema, updateProfileSchema } from "@/lib/validation/user";
+
+/**
+ * The person behind a form of this page, or the refusal's message: a session that ended (account disabled, password
+ * changed elsewhere) gets the form's message, not the error page.
+ */
+async function formUser(): Promise<UserSummary | string> {
+  try {
+    return await requireUser();
+  } catch (error) {
+    if (error instanceof UnauthenticatedError) return error.message;
+    throw error;
+  }
+}
 
 export interface ProfileFormState {
   status: "idle" | "saved" | "invalid";
@@ -14,7 +28,8 @@ export interface ProfileFormState {
 }
 
 export async function updateProfile(_previous: ProfileFormState, formData: FormData): Promise<ProfileFormState> {
-  const user = await requireUser();
+  const user = await formUser();
+  if (typeof user === "string") return { status: "invalid", message: user };
   const parsed = updateProfileSchema.safeParse({ name: formData.get("name") });
   if (!parsed.success) {
     return { status: "invalid", message: parsed.error.issues[0]?.message ?? "That name cannot be used." };
@@ -43,7 +58,8 @@ export interface PasswordFormState {
  * ends every other session of this person at its next request; this session gets the new epoch and stays.
  */
 export async function changePassword(_previous: PasswordFormState, formData: FormData): Promise<PasswordFormState> {
-  const user = await requireUser();
+  const user = await formUser();
+  if (typeof user === "string") return { status: "invalid", message: user };
   const parsed = changePasswordSchema.safeParse({
     currentPassword: formData.get("currentPassword"),
     newPassword: formData.get("newPassword"),
