@@ -199,7 +199,8 @@ export function HeatmapFigure({
   const angle = scaleLinear<number>({ domain: [-h, h], range: [cell / 2, size - cell / 2] });
   const angleUp = scaleLinear<number>({ domain: [-h, h], range: [size - cell / 2, cell / 2] });
   const blockWidth = MARGIN.left + size + MARGIN.right;
-  const width = maps.length * blockWidth + BAR.gap + BAR.width + BAR.labels;
+  // Room right of the bar for its tick labels and for the unit written above it (about 5.6 px per character at 10 px).
+  const width = maps.length * blockWidth + BAR.gap + Math.max(BAR.width + BAR.labels, Math.ceil(unit.length * 5.6) + 4);
   const height = MARGIN.top + size + MARGIN.bottom;
   const tooltip = usePlotTooltip<HoveredNode>();
   const raster = m > RASTER_ABOVE;

@@ -47,8 +47,11 @@ describe("a reviewer looks at a version", () => {
     await step(page, "residual-exports", async () => {
       await page.goto("/models/velora-transmit/versions/3");
       const figure = page.getByTestId("residual-heatmap");
-      await figure.locator('rect[data-node="12,12"]').first().hover();
-      await expect.poll(() => figure.locator("[data-plot-readout]").textContent()).toMatch(/^Node \(12, 12\) at θ = \(0, 0\) nrad: c_x [\d.e-]+, c_y [\d.e-]+ pm\/nrad$/);
+      // Hover until the page has hydrated and the figure answers (the first paint is server-rendered markup).
+      const cell = figure.locator('rect[data-node="12,12"]').first();
+      await expect
+        .poll(async () => (await cell.hover(), figure.locator("[data-plot-readout]").textContent()), { timeout: 20_000 })
+        .toMatch(/^Node \(12, 12\) at θ = \(0, 0\) nrad: c_x [\d.e-]+, c_y [\d.e-]+ pm\/nrad$/);
 
       const [csv] = await Promise.all([page.waitForEvent("download"), figure.locator('[data-export="csv"]').click()]);
       expect(csv.suggestedFilename()).toBe("largest-error-per-node-over-the-validation-set.csv");
@@ -70,8 +73,13 @@ describe("a reviewer looks at a version", () => {
       await expect(scatter.locator("svg[data-plot]").getAttribute("data-points")).resolves.toBe("200");
       await expect(scatter.locator('[data-overlay="limit"]').count()).resolves.toBe(1);
       const histogram = page.getByTestId("node-error-histogram");
-      await histogram.locator("[data-bin]").first().hover();
-      await expect.poll(() => histogram.locator("[data-plot-readout]").textContent()).toMatch(/^[\d.e-]+ – [\d.e-]+ pm\/nrad: \d+ nodes \(/);
+      // The bars lie under the histogram's pointer layer: move the mouse over the first bar rather than hovering it.
+      const bar = histogram.locator("[data-bin]").first();
+      await bar.scrollIntoViewIfNeeded();
+      const barBox = (await bar.boundingBox())!;
+      await expect
+        .poll(async () => (await page.mouse.move(barBox.x + barBox.width / 2, barBox.y + barBox.height / 2 + Math.random()), histogram.locator("[data-plot-readout]").textContent()), { timeout: 20_000 })
+        .toMatch(/^[\d.e-]+ – [\d.e-]+ pm\/nrad: \d+ nodes \(/);
     });
   });
 
@@ -89,9 +97,12 @@ describe("a reviewer looks at a version", () => {
 
       const first = await page.getByTestId("ranking-table").locator("tbody tr").first().getAttribute("data-term");
       const chart = page.getByTestId("term-ranking").locator("svg[data-plot] > g > rect").last();
+      await chart.scrollIntoViewIfNeeded();
       const box = (await chart.boundingBox())!;
-      await page.mouse.move(box.x + 1, box.y + box.height / 2);
-      await expect.poll(() => page.getByTestId("term-ranking").locator("[data-plot-readout]").textContent()).toMatch(/^#1 /);
+      // 3 px in: inside the first bar (about 4.9 px wide for 139 bars), clear of the value axis line at x = 0.
+      await expect
+        .poll(async () => (await page.mouse.move(box.x + 3, box.y + box.height / 2 + Math.random()), page.getByTestId("term-ranking").locator("[data-plot-readout]").textContent()), { timeout: 20_000 })
+        .toMatch(/^#1 /);
       await page.mouse.down();
       await page.mouse.up();
       await expect.poll(() => maps.getAttribute("data-term")).toBe(first);
