@@ -250,7 +250,19 @@ export function startWorker(options: WorkerOptions): WorkerHandle {
       return;
     }
     log(`run ${runId} failed: ${error.message}`);
-    void failRun(runId, error.message, name).catch((e: Error) => log(`could not record the failure of run ${runId}: ${e.message}`));
+    // The database may be what failed: keep trying to record the failure (every 2 s for 5 minutes), so that a run
+    // never stays "running" after its last attempt (found by npm run soak during a database outage).
+    void (async () => {
+      for (let attempt = 1; ; attempt++) {
+        try {
+          await failRun(runId, error.message, name);
+          return;
+        } catch (e) {
+          if (attempt >= 150) return log(`could not record the failure of run ${runId}: ${(e as Error).message}`);
+          await new Promise((resolve) => setTimeout(resolve, 2000));
+        }
+      }
+    })();
   });
   worker.on("error", (error) => log(`queue error: ${error.message}`));
 
