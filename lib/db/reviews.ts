@@ -1,7 +1,7 @@
 import type { Knex } from "knex";
 import { assertCan, type Actor } from "../access/actor.ts";
 import { ConflictError, ForbiddenError, UnprocessableError } from "../errors.ts";
-import { recordAuditEvent } from "./audit.ts";
+import { auditedBy, recordAuditEvent } from "./audit.ts";
 import { db } from "./knex.ts";
 import { requireModel } from "./models.ts";
 import { changeVersionState, getVersion, type VersionDetail } from "./versions.ts";
@@ -36,7 +36,7 @@ export async function reviewVersion(
     await trx("reviews").insert({ version_id: row.id, reviewer_id: actor.userId, decision: input.decision, comment });
     await changeVersionState(trx, row.id, input.decision === "approve" ? "released" : "draft", actor.userId, comment);
     await recordAuditEvent(
-      { actorUserId: actor.userId, action: `version.${input.decision}`, subjectType: "model_version", subjectId: row.id, detail: { model: slug, version, comment } },
+      { ...auditedBy(actor), action: `version.${input.decision}`, subjectType: "model_version", subjectId: row.id, detail: { model: slug, version, comment } },
       trx,
     );
   });

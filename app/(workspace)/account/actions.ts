@@ -1,6 +1,7 @@
 "use server";
 
 import { revalidatePath } from "next/cache";
+import { currentRequestAddress } from "@/components/server/action";
 import { requireUser } from "@/lib/auth/session";
 import { recordAuditEvent } from "@/lib/db/audit";
 import { updateUserName } from "@/lib/db/users";
@@ -20,6 +21,7 @@ export async function updateProfile(_previous: ProfileFormState, formData: FormD
   await updateUserName(user.id, parsed.data.name);
   await recordAuditEvent({
     actorUserId: user.id,
+    clientAddress: await currentRequestAddress(),
     action: "profile.renamed",
     subjectType: "user",
     subjectId: user.id,

@@ -1,0 +1,22 @@
+/**
+ * The address a request came from: the last entry of X-Forwarded-For, which a fronting proxy appends, or which Next's
+ * server sets from the socket when the request carries none. (A client that reaches the server directly and sends
+ * its own header chooses what is recorded.)
+ */
+export function requestAddress(headers: Record<string, string | string[] | undefined> | Headers | undefined): string {
+  const raw = headers instanceof Headers ? headers.get("x-forwarded-for") : headers?.["x-forwarded-for"];
+  const value = Array.isArray(raw) ? raw.join(",") : (raw ?? "");
+  const last = value
+    .split(",")
+    .map((part) => part.trim())
+    .filter(Boolean)
+    .at(-1);
+  return last ?? "unknown";
+}
+
+/** The origin the request was addressed to (for links in e-mail): Next's X-Forwarded-Proto and -Host, else Host. */
+export function requestOrigin(headers: Headers): string {
+  const proto = headers.get("x-forwarded-proto")?.split(",")[0]?.trim() || "http";
+  const host = headers.get("x-forwarded-host")?.split(",")[0]?.trim() || headers.get("host") || "127.0.0.1";
+  return `${proto === "https" ? "https" : "http"}://${host}`;
+}
