@@ -16,6 +16,8 @@ export const NAV_ITEMS: readonly NavItem[] = [
   { href: "/tokens", label: "Tokens", roles: ["viewer", "modeller", "reviewer", "admin"] },
   { href: "/account", label: "Account", roles: ["viewer", "modeller", "reviewer", "admin"] },
   { href: "/people", label: "People", roles: ["admin"] },
+  { href: "/tokens/all", label: "All tokens", roles: ["admin"] },
+  { href: "/audit", label: "Audit", roles: ["admin"] },
 ];
 
 export function navItemsFor(roles: readonly Role[]): NavItem[] {
