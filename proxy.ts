@@ -13,6 +13,6 @@ export async function proxy(request: NextRequest) {
 }
 
 export const config = {
-  // Everything except the sign-in page, API routes (they answer 401 themselves), and static files.
-  matcher: ["/((?!sign-in|api/|_next/static|_next/image|favicon\\.ico|icon\\.svg|robots\\.txt).*)"],
+  // Everything except the sign-in page, invitation links (their secret is the credential), API routes (they answer 401 themselves), and static files.
+  matcher: ["/((?!sign-in|invite/|api/|_next/static|_next/image|favicon\\.ico|icon\\.svg|robots\\.txt).*)"],
 };

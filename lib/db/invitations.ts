@@ -82,10 +82,13 @@ export async function createInvitation(
   input: InviteInput,
   now = new Date(),
   conn: Knex = db(),
+  /** Runs inside the invitation's transaction once it is written (the e-mail is recorded there). */
+  onCreated?: (trx: Knex.Transaction, invitation: { id: number; email: string; roles: Role[]; expiresAt: string }, secret: string) => Promise<void>,
 ): Promise<{ invitation: InvitationItem; secret: string }> {
   assertCan(actor, "admin");
   const email = normaliseEmail(input.email);
   const secret = randomBytes(SECRET_BYTES).toString("base64url");
+  const expiresAt = new Date(now.getTime() + INVITATION_HOURS * 3600_000);
   const id = await conn.transaction(async (trx) => {
     if (await trx("users").where({ email }).first()) throw new ConflictError(`There is already an account for ${email}.`);
     await trx("invitations").where({ email }).whereNull("accepted_at").whereNull("withdrawn_at").update({ withdrawn_at: now });
@@ -95,9 +98,10 @@ export async function createInvitation(
       secret_sha256: hashSecret(secret),
       invited_by: actor.userId,
       created_at: now,
-      expires_at: new Date(now.getTime() + INVITATION_HOURS * 3600_000),
+      expires_at: expiresAt,
     });
     await recordAuditEvent({ ...auditedBy(actor), action: "invitation.create", subjectType: "invitation", subjectId: inserted, detail: { email, roles: input.roles } }, trx);
+    await onCreated?.(trx, { id: Number(inserted), email, roles: [...input.roles], expiresAt: expiresAt.toISOString() }, secret);
     return Number(inserted);
   });
   const row: InvitationRow = await conn("invitations").where({ id }).first();

@@ -18,7 +18,13 @@ export async function setUserRoles(actor: Actor, userId: number, roles: readonly
   assertCan(actor, "admin");
   const wanted = ROLES.filter((role) => roles.includes(role));
   const user = await conn.transaction(async (trx) => {
-    const admins: { user_id: number }[] = await trx("user_roles").select("user_id").where({ role: "admin" }).forUpdate();
+    // Admins whose account is enabled: a disabled admin cannot act, so does not count.
+    const admins: { user_id: number }[] = await trx("user_roles")
+      .join("users", "users.id", "user_roles.user_id")
+      .select("user_roles.user_id")
+      .where("user_roles.role", "admin")
+      .whereNull("users.disabled_at")
+      .forUpdate();
     const before = await getUser(userId, trx);
     if (!before) throw new NotFoundError(`There is no person ${userId}.`);
     const losesAdmin = before.roles.includes("admin") && !wanted.includes("admin");
