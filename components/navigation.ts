@@ -17,6 +17,7 @@ export const NAV_ITEMS: readonly NavItem[] = [
   { href: "/account", label: "Account", roles: ["viewer", "modeller", "reviewer", "admin"] },
   { href: "/people", label: "People", roles: ["admin"] },
   { href: "/tokens/all", label: "All tokens", roles: ["admin"] },
+  { href: "/versions", label: "Versions", roles: ["admin"] },
   { href: "/audit", label: "Audit", roles: ["admin"] },
 ];
 
