@@ -15,9 +15,3 @@ export function requestAddress(headers: Record<string, string | string[] | undef
   return last ?? "unknown";
 }
 
-/** The origin the request was addressed to (for links in e-mail): Next's X-Forwarded-Proto and -Host, else Host. */
-export function requestOrigin(headers: Headers): string {
-  const proto = headers.get("x-forwarded-proto")?.split(",")[0]?.trim() || "http";
-  const host = headers.get("x-forwarded-host")?.split(",")[0]?.trim() || headers.get("host") || "127.0.0.1";
-  return `${proto === "https" ? "https" : "http"}://${host}`;
-}
