@@ -71,9 +71,10 @@ describe("an admin in the browser", () => {
   it("invites a person, who accepts from the e-mailed link and signs in", async () => {
     await step(admin, "invite", async () => {
       await admin.goto("/people");
-      await admin.getByLabel("E-mail").fill(invitee);
-      await admin.getByRole("checkbox", { name: /^modeller/ }).check();
-      await admin.getByRole("button", { name: "Send invitation" }).click();
+      const form = admin.getByRole("form", { name: "Invite a person" });
+      await form.getByLabel("E-mail").fill(invitee);
+      await form.getByRole("checkbox", { name: /^modeller/ }).check();
+      await form.getByRole("button", { name: "Send invitation" }).click();
       await expect(admin.getByTestId("invitation-sent").textContent()).resolves.toContain(`Invitation sent to ${invitee}`);
       await expect(admin.locator(`[data-invitation="${invitee}"] [data-testid="invitation-state"]`).textContent()).resolves.toMatch(/^pending until /);
       await shot(admin, "people");

@@ -1,5 +1,6 @@
 import { withProblems } from "@/lib/api/problem";
 import { readJson, versionParam } from "@/lib/api/request";
+import { assertCan } from "@/lib/access/actor";
 import { requireActor } from "@/lib/auth/request";
 import { retireWithNotices } from "@/lib/registry/retirement";
 import { retireBodySchema } from "@/lib/validation/registry";
@@ -13,6 +14,8 @@ export const dynamic = "force-dynamic";
 export const POST = withProblems(async (request: Request, { params }: { params: Promise<{ slug: string; version: string }> }) => {
   const actor = await requireActor(request);
   const { slug, version } = await params;
+  // Refused before the body is read: a non-admin learns nothing about what a valid retirement looks like.
+  assertCan(actor, "admin", slug);
   const number = versionParam(version);
   const body = await readJson(request, retireBodySchema);
   const { version: retired } = await retireWithNotices(actor, slug, number, body);
