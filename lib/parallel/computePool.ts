@@ -7,7 +7,7 @@ import { requireFiniteCoefficients } from "../optics/checks.ts";
 import { validateSetup } from "../optics/setup.ts";
 import type { FlatTtlMaps, OpticalSetup } from "../optics/types.ts";
 import { requireNollIndices } from "../optics/zernike.ts";
-import { checkCoefficients, checkFinite } from "../surrogate/evaluate.ts";
+import { checkCoefficients, checkFinite, MAP_SUMMARY_WIDTH } from "../surrogate/evaluate.ts";
 import type { SurrogateModel } from "../surrogate/model.ts";
 import type { ComputeTask, SharedModel } from "./computeTask.ts";
 import { runTtlTask, type TtlTask, type TtlTaskResult } from "./ttlTask.ts";
@@ -45,6 +45,12 @@ export interface ComputePool {
    * @throws RangeError as `checkCoefficients`, and when the result overflows (`checkFinite`)
    */
   evaluateBatch(model: SurrogateModel, coefficientsNm: ArrayLike<number>): Promise<Float64Array>;
+  /**
+   * What {@link summariseMapsInto} reports of each wavefront's maps (`S x 4`: peak, its node and axis, the largest
+   * `c_x^2 + c_y^2`), made in the workers, so that the maps never reach the calling thread.
+   * @throws {RangeError} as `evaluateBatch`, and when a map is not finite
+   */
+  summariseBatch(model: SurrogateModel, coefficientsNm: ArrayLike<number>): Promise<Float64Array>;
   /** Stop the workers (waits for running tasks to end). */
   close(): Promise<void>;
 }
@@ -138,6 +144,27 @@ export function createComputePool(options: { threads?: number } = {}): ComputePo
     }
     return shared;
   };
+  /** Rows shared out between the threads; the output is the maps, or with `summary` their summaries. */
+  const runEvaluation = async (model: SurrogateModel, coefficientsNm: ArrayLike<number>, summary: boolean): Promise<Float64Array> => {
+    const samples = checkCoefficients(model, coefficientsNm, true);
+    const width = summary ? MAP_SUMMARY_WIDTH : 2 * model.pointsPerAxis * model.pointsPerAxis;
+    const shared = sharedModel(model);
+    const input = new SharedArrayBuffer(Math.max(8, coefficientsNm.length * 8));
+    new Float64Array(input, 0, coefficientsNm.length).set(coefficientsNm);
+    const output = new SharedArrayBuffer(Math.max(8, samples * width * 8));
+    const share = Math.ceil(samples / threads);
+    const jobs: Promise<unknown>[] = [];
+    for (let rowStart = 0; rowStart < samples; rowStart += share) {
+      const task: ComputeTask = {
+        kind: "evaluate", summary, model: shared, input, inputLength: coefficientsNm.length, output, outputLength: samples * width,
+        rowStart, rowEnd: Math.min(samples, rowStart + share),
+      };
+      jobs.push(pool.run(task));
+    }
+    await Promise.all(jobs);
+    return new Float64Array(output, 0, samples * width);
+  };
+
 
   return {
     threads,
@@ -191,24 +218,16 @@ export function createComputePool(options: { threads?: number } = {}): ComputePo
     },
 
     async evaluateBatch(model, coefficientsNm) {
-      const samples = checkCoefficients(model, coefficientsNm, true);
-      const P = 2 * model.pointsPerAxis * model.pointsPerAxis;
-      const shared = sharedModel(model);
-      const input = new SharedArrayBuffer(Math.max(8, coefficientsNm.length * 8));
-      new Float64Array(input, 0, coefficientsNm.length).set(coefficientsNm);
-      const output = new SharedArrayBuffer(Math.max(8, samples * P * 8));
-      const share = Math.ceil(samples / threads);
-      const jobs: Promise<unknown>[] = [];
-      for (let rowStart = 0; rowStart < samples; rowStart += share) {
-        const task: ComputeTask = {
-          kind: "evaluate", model: shared, input, inputLength: coefficientsNm.length, output, outputLength: samples * P,
-          rowStart, rowEnd: Math.min(samples, rowStart + share),
-        };
-        jobs.push(pool.run(task));
-      }
-      await Promise.all(jobs);
-      const out = new Float64Array(output, 0, samples * P);
+      const out = await runEvaluation(model, coefficientsNm, false);
       checkFinite(out);
+      return out;
+    },
+
+    async summariseBatch(model, coefficientsNm) {
+      const out = await runEvaluation(model, coefficientsNm, true);
+      for (let s = 0; s < out.length; s += MAP_SUMMARY_WIDTH) {
+        if (Number.isNaN(out[s])) throw new RangeError("wavefront coefficients are too large: the surrogate TTL is not finite");
+      }
       return out;
     },
 
