@@ -19,3 +19,4 @@ export {
   beamToApertureRatio, derivedQuantities, diffractionAngleNrad, fresnelNumber, onAxisGain, onAxisGainOptimum,
   type DerivedInput, type DerivedQuantities,
 } from "./derived.ts";
+export { fitZernike, MAX_FIT_PIXELS, type HeightMap, type HeightUnit, type ZernikeFit } from "./zernikeFit.ts";
