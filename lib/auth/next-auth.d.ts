@@ -3,6 +3,8 @@ import type { Role } from "../access/roles";
 declare module "next-auth" {
   interface User {
     roles: Role[];
+    /** users.session_epoch at sign-in; a session whose epoch differs from the row's has ended. */
+    sessionEpoch: number;
   }
   interface Session {
     user: { id: number; email: string; name: string; roles: Role[] };
@@ -13,5 +15,6 @@ declare module "next-auth/jwt" {
   interface JWT {
     userId: number;
     roles: Role[];
+    sessionEpoch?: number;
   }
 }

@@ -1,39 +1,60 @@
 import type { NextAuthOptions, User } from "next-auth";
 import CredentialsProvider from "next-auth/providers/credentials";
-import { requireAuthSecret } from "../config";
+import { getConfig, requireAuthSecret } from "../config";
 import { recordAuditEvent } from "../db/audit";
-import { findCredentialsByEmail, getUser, normaliseEmail } from "../db/users";
+import { findCredentialsByEmail, getUser, normaliseEmail, sessionStanding } from "../db/users";
 import { signInSchema } from "../validation/auth";
 import { verifyPassword } from "./password";
 import { isRole } from "../access/roles";
+import { SIGN_IN_RATE_LIMITED } from "./messages";
+import { clearSignInFailures, recordFailedSignIn, requestAddress, signInBlockedFor } from "./signInLimit";
 
-const SESSION_HOURS = 12;
+type AuthorizeRequest = { headers?: Record<string, string | string[] | undefined> } | undefined;
 
-async function authorize(raw: Record<string, unknown> | undefined): Promise<User | null> {
+async function authorize(raw: Record<string, unknown> | undefined, request: AuthorizeRequest): Promise<User | null> {
   const parsed = signInSchema.safeParse(raw ?? {});
   if (!parsed.success) return null;
   const { email, password } = parsed.data;
+  const account = normaliseEmail(email);
+  const address = requestAddress(request?.headers);
+  const waitSeconds = await signInBlockedFor(account, address);
+  if (waitSeconds > 0) {
+    await recordAuditEvent({ actorUserId: null, action: "sign-in.rate-limited", detail: { email: account, address, waitSeconds } });
+    // next-auth puts the message in the URL as the error code; the sign-in page words it (lib/auth/messages.ts).
+    throw new Error(SIGN_IN_RATE_LIMITED);
+  }
   const credentials = await findCredentialsByEmail(email);
   const valid = await verifyPassword(password, credentials?.passwordHash ?? null);
-  if (!credentials || !valid) {
+  if (!credentials || !valid || credentials.disabled) {
+    await recordFailedSignIn(account, address);
     await recordAuditEvent({
       actorUserId: credentials?.id ?? null,
       action: "sign-in.refused",
-      detail: { email: normaliseEmail(email) },
+      detail: { email: account, address, ...(credentials?.disabled && valid ? { reason: "disabled" } : {}) },
     });
     return null;
   }
   const user = await getUser(credentials.id);
   if (!user) return null;
-  await recordAuditEvent({ actorUserId: user.id, action: "sign-in", subjectType: "user", subjectId: user.id });
-  return { id: String(user.id), email: user.email, name: user.name, roles: user.roles };
+  await clearSignInFailures(account);
+  await recordAuditEvent({ actorUserId: user.id, action: "sign-in", subjectType: "user", subjectId: user.id, detail: { address } });
+  return { id: String(user.id), email: user.email, name: user.name, roles: user.roles, sessionEpoch: credentials.sessionEpoch };
+}
+
+/** Thrown inside the jwt callback: next-auth then treats the session as absent and clears its cookie. */
+export class SessionEndedError extends Error {
+  constructor(reason: string) {
+    super(`session ended: ${reason}`);
+    this.name = "SessionEndedError";
+  }
 }
 
 /** next-auth settings; built on demand so the secret is read from the validated configuration at run time. */
 export function authOptions(): NextAuthOptions {
   return {
     secret: requireAuthSecret(),
-    session: { strategy: "jwt", maxAge: SESSION_HOURS * 3600 },
+    // Expires after maxAge without a request; each request that reads the session renews it (next-auth's rolling JWT).
+    session: { strategy: "jwt", maxAge: getConfig().sessionMaxAgeSeconds },
     pages: { signIn: "/sign-in", error: "/sign-in" },
     providers: [
       CredentialsProvider({
@@ -46,11 +67,26 @@ export function authOptions(): NextAuthOptions {
       }),
     ],
     callbacks: {
-      jwt({ token, user }) {
+      async jwt({ token, user }) {
         if (user) {
           token.userId = Number(user.id);
           token.roles = user.roles;
+          token.sessionEpoch = user.sessionEpoch;
+          return token;
         }
+        // Every later read of the session: a disabled account, or one whose epoch moved on (password changed,
+        // account disabled) has no session any more.
+        let standing: Awaited<ReturnType<typeof sessionStanding>>;
+        try {
+          standing = typeof token.userId === "number" ? await sessionStanding(token.userId) : null;
+        } catch {
+          // The database is unreachable: keep the session; reading the person (getSessionUser) fails next and the
+          // request answers 503, rather than signing everybody out during an outage.
+          return token;
+        }
+        if (!standing) throw new SessionEndedError("no such account");
+        if (standing.disabled) throw new SessionEndedError("account disabled");
+        if (standing.sessionEpoch !== (token.sessionEpoch ?? 0)) throw new SessionEndedError("signed in before the password changed");
         return token;
       },
       session({ session, token }) {
@@ -63,5 +99,23 @@ export function authOptions(): NextAuthOptions {
         return session;
       },
     },
+    logger: sessionLogger,
   };
 }
+
+/**
+ * next-auth's log lines, without what they carry: its errors may hold the request's body (a password) or a token,
+ * so only the code and the error's name and message leave, and an ended session is not an error at all.
+ */
+const sessionLogger: NonNullable<NextAuthOptions["logger"]> = {
+  error(code, metadata) {
+    const error = metadata instanceof Error ? metadata : (metadata as { error?: unknown } | undefined)?.error;
+    if (error instanceof SessionEndedError) return;
+    const what = error instanceof Error ? `${error.name}: ${error.message}` : "";
+    console.error(`next-auth ${code}${what ? ` (${what})` : ""}`);
+  },
+  warn(code) {
+    console.warn(`next-auth warning ${code}`);
+  },
+  debug() {},
+};

@@ -9,6 +9,7 @@ const REFUSALS = {
   revoked: "The token has been revoked.",
   expired: "The token has expired.",
   "no-role": "The token's owner no longer holds a role.",
+  disabled: "The token's owner has been disabled.",
 } as const;
 
 /**

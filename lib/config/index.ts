@@ -33,6 +33,14 @@ const configSchema = z.object({
   RATE_LIMIT_PER_MINUTE: z.coerce.number().int().min(1).max(10_000_000).default(120_000),
   /** Threads of the web server's compute pool for large evaluation batches (default 2). */
   SERVER_COMPUTE_THREADS: z.coerce.number().int().min(1).max(64).default(2),
+  /** Failed sign-ins one account may have per 15 minutes before further attempts are refused. */
+  SIGN_IN_ATTEMPTS_PER_ACCOUNT: z.coerce.number().int().min(1).max(10_000).default(10),
+  /** Failed sign-ins one address may have per 15 minutes (several people may share an address). */
+  SIGN_IN_ATTEMPTS_PER_ADDRESS: z.coerce.number().int().min(1).max(100_000).default(100),
+  /** How long a session lasts without being used, hours (next-auth's maxAge; each request renews it). */
+  SESSION_MAX_AGE_HOURS: z.coerce.number().min(0.01).max(24 * 30).default(12),
+  /** How long opening a database connection and waiting for a free one from the pool may take, ms. */
+  DATABASE_CONNECT_TIMEOUT_MS: z.coerce.number().int().min(100).max(60_000).default(2_000),
   NEXTAUTH_SECRET: z
     .string({ error: "is required (scripts/start.sh creates one in .data/auth-secret)" })
     .min(32, "must be at least 32 characters")
@@ -47,11 +55,14 @@ export interface AppConfig {
     user: string;
     password: string;
     poolMax: number;
+    connectTimeoutMs: number;
   };
   redisUrl: string;
   queue: { prefix: string; workerThreads: number | null; lockMs: number };
   rateLimitPerMinute: number;
   serverComputeThreads: number;
+  signIn: { attemptsPerAccount: number; attemptsPerAddress: number };
+  sessionMaxAgeSeconds: number;
   /** The session-signing secret; only the web server needs it (see requireAuthSecret). */
   authSecret: string | null;
 }
@@ -78,6 +89,7 @@ export function parseConfig(env: Record<string, string | undefined>): AppConfig 
     user: e.DATABASE_USER,
     password: e.DATABASE_PASSWORD,
     poolMax: e.DATABASE_POOL_MAX,
+    connectTimeoutMs: e.DATABASE_CONNECT_TIMEOUT_MS,
   };
   if (e.DATABASE_URL) {
     const url = new URL(e.DATABASE_URL);
@@ -93,6 +105,8 @@ export function parseConfig(env: Record<string, string | undefined>): AppConfig 
     queue: { prefix: e.QUEUE_PREFIX, workerThreads: e.WORKER_THREADS ?? null, lockMs: e.WORKER_LOCK_MS },
     rateLimitPerMinute: e.RATE_LIMIT_PER_MINUTE,
     serverComputeThreads: e.SERVER_COMPUTE_THREADS,
+    signIn: { attemptsPerAccount: e.SIGN_IN_ATTEMPTS_PER_ACCOUNT, attemptsPerAddress: e.SIGN_IN_ATTEMPTS_PER_ADDRESS },
+    sessionMaxAgeSeconds: Math.round(e.SESSION_MAX_AGE_HOURS * 3600),
     authSecret: e.NEXTAUTH_SECRET ?? null,
   };
 }

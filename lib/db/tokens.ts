@@ -113,7 +113,7 @@ export async function revokeToken(actor: Actor, id: number, conn: Knex = db()): 
 }
 
 /** Why a presented token is refused (the message the 401 carries). */
-export type TokenRefusal = "malformed" | "unknown" | "revoked" | "expired" | "no-role";
+export type TokenRefusal = "malformed" | "unknown" | "revoked" | "expired" | "no-role" | "disabled";
 
 /**
  * How long a checked token is trusted without asking the database again. Revocation in this process forgets it at
@@ -158,13 +158,14 @@ export async function authenticateToken(secret: string, now = new Date(), conn: 
     countTokenUse(cached.actor.tokenId!, now);
     return cached.actor;
   }
-  const row: (TokenRow & { email: string }) | undefined = await conn("api_tokens")
+  const row: (TokenRow & { email: string; owner_disabled_at: Date | null }) | undefined = await conn("api_tokens")
     .join("users", "users.id", "api_tokens.user_id")
-    .select("api_tokens.*", "users.email")
+    .select("api_tokens.*", "users.email", "users.disabled_at as owner_disabled_at")
     .where("api_tokens.secret_sha256", hash)
     .first();
   if (!row || !timingSafeEqual(Buffer.from(row.secret_sha256, "hex"), Buffer.from(hash, "hex"))) return "unknown";
   if (row.revoked_at !== null) return "revoked";
+  if (row.owner_disabled_at !== null) return "disabled";
   if (row.expires_at !== null && new Date(row.expires_at).getTime() <= now.getTime()) return "expired";
   const roleRows: { role: string }[] = await conn("user_roles").select("role").where({ user_id: row.user_id });
   const roles = roleRows.map((r) => r.role).filter(isRole) as Role[];

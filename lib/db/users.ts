@@ -1,12 +1,19 @@
 import type { Knex } from "knex";
 import { db } from "./knex";
 import { isRole, ROLES, type Role } from "../access/roles";
+import { assertCan, type Actor } from "../access/actor";
+import { ConflictError, NotFoundError } from "../errors";
+import { recordAuditEvent } from "./audit";
+import { forgetCachedTokens } from "./tokens";
 
 interface UserRow {
   id: number;
   email: string;
   name: string;
   password_hash: string;
+  disabled_at: Date | null;
+  session_epoch: number;
+  password_changed_at: Date | null;
   created_at: Date;
   updated_at: Date;
 }
@@ -18,6 +25,8 @@ export interface UserSummary {
   name: string;
   roles: Role[];
   createdAt: string;
+  /** When the account was disabled (it signs nobody in, its sessions and tokens are refused), or null. */
+  disabledAt: string | null;
 }
 
 /** Only for checking a password at sign-in. */
@@ -25,6 +34,8 @@ export interface UserCredentials {
   id: number;
   email: string;
   passwordHash: string;
+  disabled: boolean;
+  sessionEpoch: number;
 }
 
 export function normaliseEmail(email: string): string {
@@ -57,12 +68,15 @@ function toSummary(row: UserRow, roles: Role[]): UserSummary {
     name: row.name,
     roles: sortRoles(roles),
     createdAt: new Date(row.created_at).toISOString(),
+    disabledAt: row.disabled_at === null ? null : new Date(row.disabled_at).toISOString(),
   };
 }
 
 export async function findCredentialsByEmail(email: string, conn: Knex = db()): Promise<UserCredentials | null> {
   const row: UserRow | undefined = await conn<UserRow>("users").where({ email: normaliseEmail(email) }).first();
-  return row ? { id: row.id, email: row.email, passwordHash: row.password_hash } : null;
+  return row
+    ? { id: row.id, email: row.email, passwordHash: row.password_hash, disabled: row.disabled_at !== null, sessionEpoch: Number(row.session_epoch) }
+    : null;
 }
 
 export async function getUser(id: number, conn: Knex = db()): Promise<UserSummary | null> {
@@ -109,4 +123,92 @@ export async function createUser(user: NewUser, conn: Knex = db()): Promise<numb
 
 export async function updateUserName(userId: number, name: string, conn: Knex = db()): Promise<void> {
   await conn("users").where({ id: userId }).update({ name, updated_at: conn.fn.now(3) });
+}
+
+// ---- account safety: the data layer the sign-in, the session check, the account page and the admin pages share ----
+
+/** What a session token is checked against on every request: the epoch it must carry and whether the account is on. */
+export interface SessionStanding {
+  sessionEpoch: number;
+  disabled: boolean;
+}
+
+/** The person's standing, by primary key (one indexed read per request); null when the account no longer exists. */
+export async function sessionStanding(userId: number, conn: Knex = db()): Promise<SessionStanding | null> {
+  const row: Pick<UserRow, "session_epoch" | "disabled_at"> | undefined = await conn<UserRow>("users")
+    .select("session_epoch", "disabled_at")
+    .where({ id: userId })
+    .first();
+  return row ? { sessionEpoch: Number(row.session_epoch), disabled: row.disabled_at !== null } : null;
+}
+
+/**
+ * Store a new password hash and raise the session epoch: every session issued before ends at its next request.
+ * Returns the new epoch, which the caller writes into the session it keeps (see lib/auth/reissue.ts).
+ */
+export async function setPasswordHash(userId: number, passwordHash: string, conn: Knex = db()): Promise<number> {
+  return conn.transaction(async (trx) => {
+    const updated = await trx("users")
+      .where({ id: userId })
+      .update({ password_hash: passwordHash, password_changed_at: trx.fn.now(3), updated_at: trx.fn.now(3), session_epoch: trx.raw("session_epoch + 1") });
+    if (updated === 0) throw new NotFoundError(`There is no person ${userId}.`);
+    const row: { session_epoch: number } = await trx("users").select("session_epoch").where({ id: userId }).first();
+    return Number(row.session_epoch);
+  });
+}
+
+/** End every session of a person at its next request (raises the epoch); tokens are untouched. */
+export async function endSessions(userId: number, conn: Knex = db()): Promise<void> {
+  await conn("users").where({ id: userId }).update({ session_epoch: conn.raw("session_epoch + 1"), updated_at: conn.fn.now(3) });
+}
+
+/**
+ * Disable or re-enable an account, without permission checks or audit (disableUser/enableUser add those). Disabling
+ * ends the person's sessions (epoch raised) and makes their tokens fail from the next request on (the token check
+ * reads disabled_at; this process's cached checks are forgotten here). Returns whether anything changed.
+ */
+export async function setUserDisabled(userId: number, disabled: boolean, conn: Knex = db()): Promise<boolean> {
+  const updated = disabled
+    ? await conn("users")
+        .where({ id: userId })
+        .whereNull("disabled_at")
+        .update({ disabled_at: conn.fn.now(3), session_epoch: conn.raw("session_epoch + 1"), updated_at: conn.fn.now(3) })
+    : await conn("users").where({ id: userId }).whereNotNull("disabled_at").update({ disabled_at: null, updated_at: conn.fn.now(3) });
+  forgetCachedTokens({ userId });
+  return updated > 0;
+}
+
+/**
+ * An admin disables an account: at once its sessions end and its tokens are refused; audited as `user.disable`.
+ * @throws {ForbiddenError} unless the actor is an admin in a session
+ * @throws {NotFoundError} for an unknown person
+ * @throws {ConflictError} when admins try to disable themselves
+ */
+export async function disableUser(actor: Actor, userId: number, conn: Knex = db()): Promise<UserSummary> {
+  assertCan(actor, "admin");
+  if (userId === actor.userId) throw new ConflictError("You cannot disable your own account.");
+  const user = await conn.transaction(async (trx) => {
+    const target = await getUser(userId, trx);
+    if (!target) throw new NotFoundError(`There is no person ${userId}.`);
+    if (await setUserDisabled(userId, true, trx)) {
+      await recordAuditEvent({ actorUserId: actor.userId, action: "user.disable", subjectType: "user", subjectId: userId, detail: { email: target.email } }, trx);
+    }
+    return (await getUser(userId, trx))!;
+  });
+  // Again once committed: a request between the update and the commit may have cached the token as still good.
+  forgetCachedTokens({ userId });
+  return user;
+}
+
+/** An admin re-enables an account (sessions ended by disabling stay ended; tokens work again); `user.enable`. */
+export async function enableUser(actor: Actor, userId: number, conn: Knex = db()): Promise<UserSummary> {
+  assertCan(actor, "admin");
+  return conn.transaction(async (trx) => {
+    const target = await getUser(userId, trx);
+    if (!target) throw new NotFoundError(`There is no person ${userId}.`);
+    if (await setUserDisabled(userId, false, trx)) {
+      await recordAuditEvent({ actorUserId: actor.userId, action: "user.enable", subjectType: "user", subjectId: userId, detail: { email: target.email } }, trx);
+    }
+    return (await getUser(userId, trx))!;
+  });
 }

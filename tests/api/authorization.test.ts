@@ -3,7 +3,7 @@ import type { Actor } from "@/lib/access/actor";
 import { hashPassword } from "@/lib/auth/password";
 import { closeDb, db } from "@/lib/db/knex";
 import { createToken } from "@/lib/db/tokens";
-import { createUser, getUser } from "@/lib/db/users";
+import { createUser, getUser, setUserDisabled } from "@/lib/db/users";
 import { sessionActor } from "@/lib/access/actor";
 import { getCoefficientFile } from "@/lib/db/versions";
 import { closeQueueClients } from "@/lib/queue/enqueue";
@@ -122,8 +122,9 @@ const RULES: Record<string, Rule> = {
 type Caller =
   | { kind: "anonymous" }
   | { kind: "header"; value: string; label: string }
-  | { kind: "token"; label: string; scopes: string[]; models?: "other"; state?: "expired" | "revoked" | "no-role" }
-  | { kind: "session"; role: "viewer" | "modeller" | "reviewer" | "admin" };
+  | { kind: "token"; label: string; scopes: string[]; models?: "other"; state?: "expired" | "revoked" | "no-role" | "disabled" }
+  | { kind: "session"; role: "viewer" | "modeller" | "reviewer" | "admin" }
+  | { kind: "disabled-session"; label: string };
 
 const CALLERS: Caller[] = [
   { kind: "anonymous" },
@@ -140,14 +141,18 @@ const CALLERS: Caller[] = [
   { kind: "session", role: "modeller" },
   { kind: "session", role: "reviewer" },
   { kind: "session", role: "admin" },
+  // Account safety: a modeller signed in (and holding a token) before an admin disabled the account.
+  { kind: "disabled-session", label: "session of a disabled account" },
+  { kind: "token", label: "token of a disabled account", scopes: ["read", "evaluate", "train"], state: "disabled" },
 ];
 
 const label = (c: Caller) => (c.kind === "anonymous" ? "no credentials" : c.kind === "session" ? `${c.role} session` : c.label);
+let disabledAgent: ReturnType<AppServer["agent"]> | undefined;
 
 /** 401, 403, or "allowed" (anything but 401/403 and never 5xx). */
 function expected(rule: Rule, caller: Caller): 401 | 403 | "allowed" {
   if (rule.permission === "public") return "allowed";
-  if (caller.kind === "anonymous" || caller.kind === "header") return 401;
+  if (caller.kind === "anonymous" || caller.kind === "header" || caller.kind === "disabled-session") return 401;
   if (caller.kind === "token") {
     if (caller.state) return 401;
     if (rule.permission === "identity") return "allowed";
@@ -195,9 +200,16 @@ beforeAll(async () => {
   // A person who will lose every role while their token still exists.
   const leaverId = await createUser({ email: `leaver-${unique()}@velora.test`, name: "Leaver", passwordHash: await hashPassword("x".repeat(12)), roles: ["viewer"] });
   const leaver: Actor = sessionActor((await getUser(leaverId))!);
+  // A modeller who signs in and creates a token, then is disabled.
+  const disabledPassword = "disabled-matrix-password";
+  const disabledEmail = `disabled-${unique()}@velora.test`;
+  const disabledId = await createUser({ email: disabledEmail, name: "Disabled", passwordHash: await hashPassword(disabledPassword), roles: ["viewer", "modeller"] });
+  const disabledPerson: Actor = sessionActor((await getUser(disabledId))!);
+  disabledAgent = server.agent();
+  await signIn(disabledAgent, disabledEmail, disabledPassword);
   for (const caller of CALLERS) {
     if (caller.kind !== "token") continue;
-    const owner = caller.state === "no-role" ? leaver : modeller;
+    const owner = caller.state === "no-role" ? leaver : caller.state === "disabled" ? disabledPerson : modeller;
     const created = await createToken(owner, {
       name: caller.label, scopes: caller.scopes as ("read" | "evaluate" | "train")[],
       expiresAt: caller.state === "expired" ? new Date(Date.now() + 1500).toISOString() : null,
@@ -207,6 +219,7 @@ beforeAll(async () => {
     tokens.set(caller.label, created.token);
   }
   await db()("user_roles").where({ user_id: leaverId }).delete();
+  await setUserDisabled(disabledId, true);
   await new Promise((resolve) => setTimeout(resolve, 1600)); // the short-lived token expires
 });
 
@@ -236,8 +249,8 @@ describe("the authorisation matrix of /api/v1", () => {
     let status: number;
     let text: string;
     let contentType: string;
-    if (caller.kind === "session") {
-      const agent = sessions.get(caller.role)!;
+    if (caller.kind === "session" || caller.kind === "disabled-session") {
+      const agent = caller.kind === "session" ? sessions.get(caller.role)! : disabledAgent!;
       let request = agent[method.toLowerCase() as "get"](rule.path());
       for (const [k, v] of Object.entries(headers)) request = request.set(k, v);
       if (raw && raw.data instanceof FormData) request = request.attach("file", Buffer.from([1, 2, 3]), "not.npz");

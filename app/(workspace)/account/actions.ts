@@ -1,10 +1,12 @@
 "use server";
 
 import { revalidatePath } from "next/cache";
+import { hashPassword, verifyPassword } from "@/lib/auth/password";
+import { keepCurrentSession } from "@/lib/auth/reissue";
 import { requireUser } from "@/lib/auth/session";
 import { recordAuditEvent } from "@/lib/db/audit";
-import { updateUserName } from "@/lib/db/users";
-import { updateProfileSchema } from "@/lib/validation/user";
+import { findCredentialsByEmail, setPasswordHash, updateUserName } from "@/lib/db/users";
+import { changePasswordSchema, updateProfileSchema } from "@/lib/validation/user";
 
 export interface ProfileFormState {
   status: "idle" | "saved" | "invalid";
@@ -27,4 +29,38 @@ export async function updateProfile(_previous: ProfileFormState, formData: FormD
   });
   revalidatePath("/", "layout");
   return { status: "saved", message: "Name saved." };
+}
+
+export interface PasswordFormState {
+  status: "idle" | "saved" | "invalid";
+  message?: string;
+  /** Field messages by field name. */
+  fieldErrors?: Record<string, string>;
+}
+
+/**
+ * Change one's own password: the current one must match; the new hash is stored and the session epoch raised, which
+ * ends every other session of this person at its next request; this session gets the new epoch and stays.
+ */
+export async function changePassword(_previous: PasswordFormState, formData: FormData): Promise<PasswordFormState> {
+  const user = await requireUser();
+  const parsed = changePasswordSchema.safeParse({
+    currentPassword: formData.get("currentPassword"),
+    newPassword: formData.get("newPassword"),
+    confirmPassword: formData.get("confirmPassword"),
+  });
+  if (!parsed.success) {
+    const fieldErrors: Record<string, string> = {};
+    for (const issue of parsed.error.issues) fieldErrors[String(issue.path[0] ?? "form")] ??= issue.message;
+    return { status: "invalid", message: "The password was not changed.", fieldErrors };
+  }
+  const credentials = await findCredentialsByEmail(user.email);
+  if (!credentials || !(await verifyPassword(parsed.data.currentPassword, credentials.passwordHash))) {
+    await recordAuditEvent({ actorUserId: user.id, action: "password.change-refused", subjectType: "user", subjectId: user.id });
+    return { status: "invalid", message: "The password was not changed.", fieldErrors: { currentPassword: "That is not your current password." } };
+  }
+  const epoch = await setPasswordHash(user.id, await hashPassword(parsed.data.newPassword));
+  await keepCurrentSession(epoch);
+  await recordAuditEvent({ actorUserId: user.id, action: "password.change", subjectType: "user", subjectId: user.id });
+  return { status: "saved", message: "Password changed. Your other sessions have ended." };
 }

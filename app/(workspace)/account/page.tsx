@@ -3,6 +3,7 @@ import { PageHeading } from "@/components/page-heading";
 import { RoleList } from "@/components/role-list";
 import { requirePageUser } from "@/lib/auth/page";
 import { listAuditEventsByActor } from "@/lib/db/audit";
+import { PasswordForm } from "./password-form";
 import { ProfileForm } from "./profile-form";
 
 export const metadata: Metadata = { title: "Account" };
@@ -27,6 +28,7 @@ export default async function AccountPage() {
           <dd className="font-mono text-xs">{user.createdAt.slice(0, 10)}</dd>
         </dl>
         <ProfileForm name={user.name} />
+        <PasswordForm />
       </section>
       <section aria-labelledby="activity-heading">
         <h2 id="activity-heading" className="mb-2 border-b border-line pb-2 text-md font-semibold">
