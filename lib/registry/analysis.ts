@@ -251,9 +251,13 @@ export async function noiseAnalysis(actor: Actor, slug: string, version: number,
   };
 }
 
-/** Fit a measured height map (`.npy` or CSV grid) with a Zernike set by least squares over the aperture. */
-export async function fitHeightMap(actor: Actor, bytes: Uint8Array, fields: FitFields, options: { pool: Pool }) {
+/**
+ * Fit a measured height map (`.npy` or CSV grid) with a Zernike set by least squares over the aperture. `read` gives
+ * the file and the form's fields; it is called only once the actor may fit (so a refusal never depends on the body).
+ */
+export async function fitHeightMap(actor: Actor, read: () => Promise<{ bytes: Uint8Array; fields: FitFields }>, options: { pool: Pool }) {
   assertCan(actor, "read");
+  const { bytes, fields } = await read();
   let grid;
   try {
     grid = readHeightMap(bytes);
