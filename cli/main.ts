@@ -7,13 +7,14 @@ const COMMANDS: Record<string, string> = {
   train: "train a surrogate model locally and write a .stpm file",
   eval: "evaluate a .stpm model for wavefront(s), JSON on stdout",
   push: "register a local .stpm model as a new draft version on a server",
-  worker: "take training work from the shared queue (REDIS_URL, DATABASE_URL)",
+  worker: "take training work and mail from the shared queue (REDIS_URL, DATABASE_URL, SMTP_*)",
+  "mail-sink": "a local SMTP server on 127.0.0.1 that keeps every message it receives in a folder",
 };
 
 const USAGE = [
   "usage: stillpoint <command> [options]",
   "",
-  ...Object.entries(COMMANDS).map(([name, text]) => `  ${name.padEnd(8)} ${text}`),
+  ...Object.entries(COMMANDS).map(([name, text]) => `  ${name.padEnd(9)} ${text}`),
   "",
   SURROGATE_NOTICE,
 ].join("\n");

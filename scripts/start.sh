@@ -1,5 +1,5 @@
 #!/usr/bin/env bash
-# npm start: demo database and job queue (Redis) up, schema migrated, demo accounts and models seeded when missing,
+# npm start: demo database, job queue (Redis) and local mail sink up, schema migrated, demo accounts and models seeded when missing,
 # app built when stale, served on http://127.0.0.1:3000 with one training worker beside it.
 # Ctrl-C stops the app, the worker and the services this script started.
 set -euo pipefail
@@ -12,6 +12,12 @@ export REDIS_PORT="${REDIS_PORT:-6380}"
 export REDIS_URL="${REDIS_URL:-redis://127.0.0.1:$REDIS_PORT}"
 port="${PORT:-3000}"
 export NEXTAUTH_URL="${NEXTAUTH_URL:-http://127.0.0.1:$port}"
+# Mail goes to the local sink (db/smtp.sh), which keeps it under .data/mail-demo; admins read it on /mailbox.
+export SMTP_HOST="${SMTP_HOST:-127.0.0.1}"
+export SMTP_PORT="${SMTP_PORT:-2525}"
+export MAIL_SINK_DIR="${MAIL_SINK_DIR:-$repo_root/.data/mail-demo}"
+export MAILBOX_PAGE="${MAILBOX_PAGE:-1}"
+export PUBLIC_BASE_URL="${PUBLIC_BASE_URL:-$NEXTAUTH_URL}"
 
 ensure_auth_secret
 
@@ -19,8 +25,11 @@ db_was_running=0
 bash db/mariadb.sh status demo >/dev/null 2>&1 && db_was_running=1
 redis_was_running=0
 bash db/redis.sh status demo >/dev/null 2>&1 && redis_was_running=1
+smtp_was_running=0
+bash db/smtp.sh status demo >/dev/null 2>&1 && smtp_was_running=1
 bash db/mariadb.sh start demo
 bash db/redis.sh start demo
+bash db/smtp.sh start demo
 
 server_pid=""
 worker_pid=""
@@ -33,6 +42,7 @@ cleanup() {
   for pid in "$server_pid" "$worker_pid"; do
     [[ -n "$pid" ]] && wait "$pid" 2>/dev/null || true
   done
+  if [[ "$smtp_was_running" == 0 ]]; then bash db/smtp.sh stop demo || true; fi
   if [[ "$redis_was_running" == 0 ]]; then bash db/redis.sh stop demo || true; fi
   if [[ "$db_was_running" == 0 ]]; then bash db/mariadb.sh stop demo || true; fi
 }

@@ -13,6 +13,12 @@ export REDIS_PORT="${TEST_REDIS_PORT:-6390}"
 export REDIS_URL="redis://127.0.0.1:$REDIS_PORT"
 # Each run has its own keys in the shared test Redis.
 export QUEUE_PREFIX="stillpoint-test-r$$"
+# Mail goes to this run's local sink (db/smtp.sh test); tests read it back from MAIL_SINK_DIR.
+export SMTP_HOST=127.0.0.1
+export SMTP_PORT="${TEST_SMTP_PORT:-2535}"
+export MAIL_SINK_DIR="$repo_root/.data/mail-test"
+export PUBLIC_BASE_URL="http://stillpoint.test:3000"
+unset MAILBOX_PAGE
 # Workers started by the tests give up a dead worker's job after 2 s instead of 30.
 export WORKER_LOCK_MS=2000
 export NEXTAUTH_SECRET="$(random_secret)"
@@ -41,6 +47,7 @@ cleanup() {
   done
   bash db/mariadb.sh stop "$instance" || true
   bash db/redis.sh stop "$instance" || true
+  bash db/smtp.sh stop "$instance" || true
 }
 trap cleanup EXIT
 trap 'exit 130' INT
@@ -52,6 +59,7 @@ fail() { echo "[test] $*" >&2; exit 1; }
 
 bash db/mariadb.sh start "$instance" || fail "could not start the test database"
 bash db/redis.sh start "$instance" || fail "could not start the test Redis"
+bash db/smtp.sh start "$instance" || fail "could not start the test mail sink"
 root_sql "DROP DATABASE IF EXISTS \`$DATABASE_NAME\`; CREATE DATABASE \`$DATABASE_NAME\` CHARACTER SET utf8mb4 COLLATE utf8mb4_unicode_ci; GRANT ALL PRIVILEGES ON \`$DATABASE_NAME%\`.* TO 'app'@'127.0.0.1';" \
   || fail "could not create $DATABASE_NAME"
 knex_cli migrate:latest || fail "migrations failed"

@@ -33,6 +33,33 @@ const configSchema = z.object({
   RATE_LIMIT_PER_MINUTE: z.coerce.number().int().min(1).max(10_000_000).default(120_000),
   /** Threads of the web server's compute pool for large evaluation batches (default 2). */
   SERVER_COMPUTE_THREADS: z.coerce.number().int().min(1).max(64).default(2),
+  /** The SMTP server mail goes out through (`npm start` and `npm test` run a local sink there). */
+  SMTP_HOST: z.string().min(1).default("127.0.0.1"),
+  SMTP_PORT: z.coerce.number().int().min(1).max(65535).default(2525),
+  /** Optional SMTP credentials (the local sink needs none). */
+  SMTP_USER: z.string().optional(),
+  SMTP_PASSWORD: z.string().optional(),
+  /** The sender of every mail: an address, or `Name <address>`. */
+  MAIL_FROM: z
+    .string()
+    .default("Stillpoint <stillpoint@localhost>")
+    .refine((v) => /^([^<>]*<[^\s@<>]+@[^\s@<>]+>|[^\s@<>]+@[^\s@<>]+)$/.test(v.trim()), "must be an address or Name <address>"),
+  /** Tries of one mail before it is marked failed, and the first delay between tries (doubled each time), ms. */
+  MAIL_ATTEMPTS: z.coerce.number().int().min(1).max(50).default(10),
+  MAIL_RETRY_DELAY_MS: z.coerce.number().int().min(10).max(3_600_000).default(5000),
+  /** The address people reach the app at, for the links in mails (default NEXTAUTH_URL, else http://127.0.0.1:3000). */
+  PUBLIC_BASE_URL: z
+    .string()
+    .optional()
+    .refine((v) => v === undefined || v === "" || /^https?:\/\/[^/\s]+(\/[^\s]*)?$/.test(v), "must be an http(s) URL"),
+  NEXTAUTH_URL: z.string().optional(),
+  /** Folder where the local mail sink keeps what it receives (set by `npm start` and `npm test`). */
+  MAIL_SINK_DIR: z.string().optional(),
+  /** Show admins the local sink's mailbox page (`npm start` sets it; off otherwise). */
+  MAILBOX_PAGE: z
+    .enum(["", "0", "1", "false", "true"], { error: 'must be "1" or "0"' })
+    .optional()
+    .transform((v) => v === "1" || v === "true"),
   /** Failed sign-ins one account may have per 15 minutes before further attempts are refused. */
   SIGN_IN_ATTEMPTS_PER_ACCOUNT: z.coerce.number().int().min(1).max(10_000).default(10),
   /** Failed sign-ins one address may have per 15 minutes (several people may share an address). */
@@ -61,10 +88,22 @@ export interface AppConfig {
   queue: { prefix: string; workerThreads: number | null; lockMs: number };
   rateLimitPerMinute: number;
   serverComputeThreads: number;
+  mail: MailConfig;
   signIn: { attemptsPerAccount: number; attemptsPerAddress: number };
   sessionMaxAgeSeconds: number;
   /** The session-signing secret; only the web server needs it (see requireAuthSecret). */
   authSecret: string | null;
+}
+
+export interface MailConfig {
+  smtp: { host: string; port: number; user: string | null; password: string | null };
+  from: string;
+  attempts: number;
+  retryDelayMs: number;
+  /** Origin (and path prefix) of the app for links in mails, without a trailing slash. */
+  publicBaseUrl: string;
+  sinkDir: string | null;
+  mailboxPage: boolean;
 }
 
 export class ConfigError extends Error {
@@ -105,6 +144,15 @@ export function parseConfig(env: Record<string, string | undefined>): AppConfig 
     queue: { prefix: e.QUEUE_PREFIX, workerThreads: e.WORKER_THREADS ?? null, lockMs: e.WORKER_LOCK_MS },
     rateLimitPerMinute: e.RATE_LIMIT_PER_MINUTE,
     serverComputeThreads: e.SERVER_COMPUTE_THREADS,
+    mail: {
+      smtp: { host: e.SMTP_HOST, port: e.SMTP_PORT, user: e.SMTP_USER || null, password: e.SMTP_PASSWORD || null },
+      from: e.MAIL_FROM.trim(),
+      attempts: e.MAIL_ATTEMPTS,
+      retryDelayMs: e.MAIL_RETRY_DELAY_MS,
+      publicBaseUrl: (e.PUBLIC_BASE_URL || e.NEXTAUTH_URL || "http://127.0.0.1:3000").replace(/\/+$/, ""),
+      sinkDir: e.MAIL_SINK_DIR || null,
+      mailboxPage: e.MAILBOX_PAGE,
+    },
     signIn: { attemptsPerAccount: e.SIGN_IN_ATTEMPTS_PER_ACCOUNT, attemptsPerAddress: e.SIGN_IN_ATTEMPTS_PER_ADDRESS },
     sessionMaxAgeSeconds: Math.round(e.SESSION_MAX_AGE_HOURS * 3600),
     authSecret: e.NEXTAUTH_SECRET ?? null,

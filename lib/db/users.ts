@@ -125,6 +125,16 @@ export async function updateUserName(userId: number, name: string, conn: Knex = 
   await conn("users").where({ id: userId }).update({ name, updated_at: conn.fn.now(3) });
 }
 
+/** Everyone holding a role, by e-mail (the recipients of the mails meant for that role). */
+export async function usersWithRole(role: Role, conn: Knex = db()): Promise<{ id: number; email: string }[]> {
+  return conn("users")
+    .join("user_roles", "user_roles.user_id", "users.id")
+    .where("user_roles.role", role)
+    .whereNull("users.disabled_at")
+    .select("users.id", "users.email")
+    .orderBy("users.email");
+}
+
 // ---- account safety: the data layer the sign-in, the session check, the account page and the admin pages share ----
 
 /** What a session token is checked against on every request: the epoch it must carry and whether the account is on. */

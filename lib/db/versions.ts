@@ -9,10 +9,13 @@ import type { ResidualStatistics } from "../surrogate/statistics.ts";
 import type { Term } from "../surrogate/terms.ts";
 import type { ValidityRange } from "../surrogate/validity.ts";
 import type { VersionState } from "../validation/registry.ts";
+import { dispatchMail, recordMail } from "../mail/index.ts";
+import { versionSubmittedMail } from "../mail/review.ts";
 import { recordAuditEvent } from "./audit.ts";
 import { db } from "./knex.ts";
 import { loadModel, requireModel, type ModelRecord } from "./models.ts";
 import { fromJson, toIso } from "./rows.ts";
+import { usersWithRole } from "./users.ts";
 
 /** Largest `.stpm` blob the registry stores (a 595-term, 101 x 101 model is about 50 MB). */
 export const MAX_MODEL_FILE_BYTES = 100 * 1024 * 1024;
@@ -246,13 +249,31 @@ export async function changeVersionState(
 export async function submitVersion(actor: Actor, slug: string, version: number, conn: Knex = db()): Promise<VersionDetail> {
   assertCan(actor, "train", slug);
   const model = await requireModel(actor, slug, conn);
-  await conn.transaction(async (trx) => {
+  const mailIds = await conn.transaction(async (trx) => {
     const row = await versionRow(model, version, trx, true);
     if (row.created_by !== actor.userId) throw new ForbiddenError("Only the modeller who made this version may submit it for review.");
     if (row.state !== "draft") throw new ConflictError(`Version ${version} is ${row.state}; only a draft can be submitted for review.`);
     await changeVersionState(trx, row.id, "in-review", actor.userId, null);
     await recordAuditEvent({ actorUserId: actor.userId, action: "version.submit", subjectType: "model_version", subjectId: row.id, detail: { model: slug, version } }, trx);
+    // Every reviewer but the author hears of it; the mail rows commit with the submission.
+    const reviewers = (await usersWithRole("reviewer", trx)).filter((r) => r.id !== actor.userId);
+    if (reviewers.length === 0) return [];
+    const overall = row.statistics === null ? null : fromJson<ResidualStatistics>(row.statistics).overall;
+    const facts = {
+      versionId: row.id,
+      slug,
+      modelName: model.name,
+      version,
+      order: row.order,
+      termCount: row.term_count,
+      maxAbsErrorPmPerNrad: overall?.maxAbsErrorPmPerNrad ?? null,
+      maxErrorRelativeToPeak: overall?.maxErrorRelativeToPeak ?? null,
+      maxTotalRmsNm: fromJson<ValidityRange>(row.validity).maxTotalRmsNm,
+      author: actor.email,
+    };
+    return recordMail(trx, [versionSubmittedMail(facts, reviewers.map((r) => ({ email: r.email, userId: r.id })))]);
   });
+  await dispatchMail(mailIds);
   return getVersion(actor, slug, version, conn);
 }
 

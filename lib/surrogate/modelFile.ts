@@ -63,6 +63,7 @@ const headerSchema = z.object({
         rmsErrorXPmPerNrad: z.array(finite),
         rmsErrorYPmPerNrad: z.array(finite),
       }),
+      perSample: z.object({ rmsNm: z.array(finite), maxAbsErrorPmPerNrad: z.array(finite) }).optional(),
     })
     .nullable(),
   pruning: z

@@ -30,11 +30,19 @@ export interface ResidualStatistics {
     rmsErrorXPmPerNrad: number[];
     rmsErrorYPmPerNrad: number[];
   };
+  /**
+   * Per validation sample, in the set's order: its total RMS wavefront error (nm) and its largest |error| over the
+   * nodes and both axes (pm/nrad). Absent from statistics computed before it was recorded.
+   */
+  perSample?: {
+    rmsNm: number[];
+    maxAbsErrorPmPerNrad: number[];
+  };
 }
 
 /**
  * Residual statistics of predicted maps against the exact maps of a sample set: overall, per total-RMS bin
- * and per node. Errors are `predicted - exact` in pm/nrad; relative figures divide by the largest |exact TTL|
+ * per node and per sample. Errors are `predicted - exact` in pm/nrad; relative figures divide by the largest |exact TTL|
  * of the set (or bin, or sample).
  *
  * @param predicted flat maps in the layout of the set: `x[s * M^2 + node]`, pm/nrad
@@ -70,6 +78,7 @@ export function residualStatistics(
   const maxY = new Float64Array(nodes);
   const sqX = new Float64Array(nodes);
   const sqY = new Float64Array(nodes);
+  const sampleMaxima = new Float64Array(set.count);
   for (let s = 0; s < set.count; s++) {
     let samplePeak = 0;
     let sampleMax = 0;
@@ -90,6 +99,7 @@ export function residualStatistics(
       sqX[n] += dx * dx;
       sqY[n] += dy * dy;
     }
+    sampleMaxima[s] = sampleMax;
     const relative = samplePeak > 0 ? sampleMax / samplePeak : sampleMax > 0 ? Infinity : 0;
     for (const acc of [accumulators[binCount], accumulators[binOf(rms[s])]]) {
       acc.samples++;
@@ -121,5 +131,6 @@ export function residualStatistics(
       rmsErrorXPmPerNrad: Array.from(sqX, (v) => Math.sqrt(v / set.count)),
       rmsErrorYPmPerNrad: Array.from(sqY, (v) => Math.sqrt(v / set.count)),
     },
+    perSample: { rmsNm: Array.from(rms), maxAbsErrorPmPerNrad: Array.from(sampleMaxima) },
   };
 }

@@ -1,13 +1,9 @@
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import type { Actor } from "@/lib/access/actor";
 import { closeDb, db } from "@/lib/db/knex";
-import { loadModel } from "@/lib/db/models";
 import { reviewVersion } from "@/lib/db/reviews";
-import { getVersion, insertVersion, submitVersion } from "@/lib/db/versions";
-import { encodeModel } from "@/lib/surrogate/modelFile";
-import type { SurrogateModel } from "@/lib/surrogate/model";
-import { fullTerms } from "@/lib/surrogate/terms";
-import { actorFor, createTestModel, SMALL_SETUP, SMALL_ZERNIKE } from "../helpers/registry";
+import { getVersion, submitVersion } from "@/lib/db/versions";
+import { actorFor, createTestModel, storeSyntheticVersion } from "../helpers/registry";
 import { testDatabaseName } from "../helpers/test-database";
 
 testDatabaseName();
@@ -25,34 +21,8 @@ afterAll(async () => {
   await closeDb();
 });
 
-/** A first-order model with made-up coefficients: what is stored, not what it predicts, matters here. */
-function syntheticModel(scale: number): SurrogateModel {
-  const nollIndices = [4, 5, 6, 7, 8];
-  const terms = fullTerms(nollIndices, 1);
-  const P = 2 * 9 * 9;
-  return {
-    setup: SMALL_SETUP,
-    zernike: SMALL_ZERNIKE,
-    nollIndices,
-    order: 1,
-    terms,
-    pointsPerAxis: 9,
-    coefficients: Float64Array.from({ length: terms.length * P }, (_, i) => Math.fround(scale * Math.sin(i))),
-    validity: { maxTotalRmsNm: 10, termBoundsNm: nollIndices.map((noll) => ({ noll, minNm: -10, maxNm: 10 })) },
-    provenance: {
-      design: "random", size: 10, maxRmsNm: 10, stepNm: null, seed: 1, uploadedSha256: null, validationSet: null,
-      softwareVersion: "test", createdAt: "2026-12-01T00:00:00.000Z",
-    },
-    fit: { samples: 10, conditionNumber: 1, trainingResidualRmsPmPerNrad: 0 },
-    statistics: null,
-    pruning: null,
-  };
-}
-
-async function storeVersion(slug: string, scale: number) {
-  const model = (await loadModel(slug))!;
-  const surrogate = syntheticModel(scale);
-  return db().transaction((trx) => insertVersion(trx, { model, surrogate, file: encodeModel(surrogate), createdBy: modeller.userId }));
+function storeVersion(slug: string, scale: number) {
+  return storeSyntheticVersion(slug, modeller.userId, { scale });
 }
 
 describe("model versions in the database", () => {

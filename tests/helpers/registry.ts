@@ -1,9 +1,14 @@
 import { sessionActor, type Actor } from "@/lib/access/actor";
 import { db } from "@/lib/db/knex";
-import { createModel } from "@/lib/db/models";
+import { createModel, loadModel } from "@/lib/db/models";
 import { getRun, type RunDetail } from "@/lib/db/runs";
 import { createSetup } from "@/lib/db/setups";
 import { getUser } from "@/lib/db/users";
+import { insertVersion } from "@/lib/db/versions";
+import type { SurrogateModel } from "@/lib/surrogate/model";
+import { encodeModel } from "@/lib/surrogate/modelFile";
+import type { ResidualStatistics } from "@/lib/surrogate/statistics";
+import { fullTerms } from "@/lib/surrogate/terms";
 import type { OpticalSetup, ZernikeSet } from "@/lib/optics/types";
 import { runTtlTask } from "@/lib/parallel/ttlTask";
 import { startWorker, type WorkerHandle } from "@/lib/queue/worker";
@@ -55,4 +60,42 @@ export async function waitForRun(actor: Actor, id: number, timeoutMs = 60_000): 
     if (Date.now() > until) throw new Error(`run ${id} still ${run.state} after ${timeoutMs} ms`);
     await new Promise((resolve) => setTimeout(resolve, 25));
   }
+}
+
+/**
+ * A first-order model of SMALL_SETUP with made-up coefficients and, when given, made-up statistics: for tests where
+ * what is stored, not what it predicts, matters.
+ */
+export function syntheticModel(scale: number, statistics: ResidualStatistics | null = null): SurrogateModel {
+  const nollIndices = [4, 5, 6, 7, 8];
+  const terms = fullTerms(nollIndices, 1);
+  const P = 2 * 9 * 9;
+  return {
+    setup: SMALL_SETUP,
+    zernike: SMALL_ZERNIKE,
+    nollIndices,
+    order: 1,
+    terms,
+    pointsPerAxis: 9,
+    coefficients: Float64Array.from({ length: terms.length * P }, (_, i) => Math.fround(scale * Math.sin(i))),
+    validity: { maxTotalRmsNm: 10, termBoundsNm: nollIndices.map((noll) => ({ noll, minNm: -10, maxNm: 10 })) },
+    provenance: {
+      design: "random", size: 10, maxRmsNm: 10, stepNm: null, seed: 1, uploadedSha256: null, validationSet: null,
+      softwareVersion: "test", createdAt: "2026-12-01T00:00:00.000Z",
+    },
+    fit: { samples: 10, conditionNumber: 1, trainingResidualRmsPmPerNrad: 0 },
+    statistics,
+    pruning: null,
+  };
+}
+
+/** Store a synthetic draft version of a model, made by `createdBy`. */
+export async function storeSyntheticVersion(
+  slug: string,
+  createdBy: number,
+  options: { scale?: number; statistics?: ResidualStatistics | null } = {},
+): Promise<{ id: number; version: number }> {
+  const model = (await loadModel(slug))!;
+  const surrogate = syntheticModel(options.scale ?? 1, options.statistics ?? null);
+  return db().transaction((trx) => insertVersion(trx, { model, surrogate, file: encodeModel(surrogate), createdBy }));
 }

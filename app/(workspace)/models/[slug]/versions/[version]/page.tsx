@@ -13,7 +13,7 @@ import { getModel } from "@/lib/db/models";
 import { getVersion } from "@/lib/db/versions";
 import { thetaGridNrad } from "@/lib/optics/setup";
 import type { ErrorSummary } from "@/lib/surrogate/statistics";
-import { ResidualHeatmaps } from "./residual-heatmap";
+import { ResidualPlots } from "./residual-plots";
 import { SubmitForReview } from "./submit-button";
 
 type Params = Promise<{ slug: string; version: string }>;
@@ -195,7 +195,7 @@ export default async function VersionPage({ params }: { params: Params }) {
           </p>
         ) : (
           <div className="flex flex-col gap-4">
-            <ResidualHeatmaps thetaNrad={theta} perNode={stats.perNode} />
+            <ResidualPlots thetaNrad={theta} statistics={stats} validityLimitNm={v.validity.maxTotalRmsNm} order={v.order} version={`${slug} v${v.version}`} />
             <div className="overflow-x-auto">
               <table className="w-full border-collapse bg-surface font-mono text-xs" data-testid="statistics-table">
                 <caption className="mb-1 text-left font-sans text-xs text-muted">

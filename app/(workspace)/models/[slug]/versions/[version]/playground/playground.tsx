@@ -4,7 +4,7 @@ import { useRouter } from "next/navigation";
 import { useEffect, useMemo, useRef, useState, type ReactNode } from "react";
 import { quietButtonClass, tdClass, thClass } from "@/components/empty-state";
 import { formatNumber } from "@/components/format";
-import { ColourBar, DIVERGING_RAMP, NodeHeatmap, rampScale, symmetricDomain, type HoveredNode } from "@/components/node-heatmap";
+import { HeatmapFigure } from "@/components/plots/heatmap";
 import { StandingNotice } from "@/components/standing-notice";
 import { VersionPicker, type PickableModel } from "@/components/version-picker";
 import { nollToOrders } from "@/lib/optics/zernike";
@@ -14,6 +14,7 @@ import type { ValidityRange } from "@/lib/surrogate/validity";
 const DEBOUNCE_MS = 25;
 /** Side of each map in px: both maps and the colour bar fit one row beside the wavefront panel. */
 const MAP_SIZE = 240;
+const MAP_UNIT = "pm/nrad";
 
 interface EvaluateAnswer {
   state: string;
@@ -88,7 +89,6 @@ export function Playground({
   const [answer, setAnswer] = useState<{ result: EvaluateAnswer["results"][number]; sha: string; roundTripMs: number; forKey: string } | null>(null);
   const [error, setError] = useState<string | null>(null);
   const [busy, setBusy] = useState(false);
-  const [hovered, setHovered] = useState<HoveredNode | null>(null);
   const [exact, setExact] = useState<{ answer: ExactAnswer; forKey: string; roundTripMs: number } | null>(null);
   const [exactBusy, setExactBusy] = useState(false);
   const [exactError, setExactError] = useState<string | null>(null);
@@ -165,18 +165,13 @@ export function Playground({
   const result = answer?.result;
   const mapX = result ? flat(result.ttlXPmPerNrad) : null;
   const mapY = result ? flat(result.ttlYPmPerNrad) : null;
-  const [lo, hi] = mapX && mapY ? symmetricDomain(mapX, mapY) : [-1, 1];
-  const colour = rampScale(DIVERGING_RAMP, lo, hi);
   const m = thetaNrad.length;
   const nodeOf = (thetaX: number, thetaY: number) => ({ ix: thetaNrad.indexOf(thetaX), iy: thetaNrad.indexOf(thetaY) });
   const peakNode = result ? nodeOf(result.peakAt.thetaXNrad, result.peakAt.thetaYNrad) : null;
-  const hoveredValues =
-    hovered && mapX && mapY ? { x: mapX[hovered.iy * m + hovered.ix], y: mapY[hovered.iy * m + hovered.ix] } : null;
 
   const differenceX = exact ? flat(exact.answer.differencePmPerNrad.x) : null;
   const differenceY = exact ? flat(exact.answer.differencePmPerNrad.y) : null;
-  const [dLo, dHi] = differenceX && differenceY ? symmetricDomain(differenceX, differenceY) : [-1, 1];
-  const differenceColour = rampScale(DIVERGING_RAMP, dLo, dHi);
+  const wavefrontComment = `wavefront (Noll: nm RMS) ${JSON.stringify(wavefront.coefficientsNm)}; ${slug} v${version}`;
   const exactStale = exact !== null && exact.forKey !== key;
   const worstDifference = exact?.answer.maxAbsDifferenceAt ? nodeOf(exact.answer.maxAbsDifferenceAt.thetaXNrad, exact.answer.maxAbsDifferenceAt.thetaYNrad) : null;
 
@@ -202,33 +197,20 @@ export function Playground({
           </h2>
           <div className="flex flex-wrap items-start gap-4" data-testid="ttl-maps" data-evaluated={answer?.forKey ?? ""}>
             {mapX && mapY && result ? (
-              <>
-                <NodeHeatmap
-                  title="c_x (TTL for tilt about x)"
-                  description={`Surrogate c_x map over ${m} × ${m} nodes; peak |c| ${formatNumber(result.peakAbsTtlPmPerNrad, 3)} pm/nrad.`}
-                  thetaNrad={thetaNrad}
-                  values={mapX}
-                  colour={colour}
-                  unit="pm/nrad"
-                  marker={result.peakAt.axis === "x" ? peakNode : null}
-                  onHover={setHovered}
-                  size={MAP_SIZE}
-                  testId="map-x"
-                />
-                <NodeHeatmap
-                  title="c_y (TTL for tilt about y)"
-                  description={`Surrogate c_y map over ${m} × ${m} nodes; peak |c| ${formatNumber(result.peakAbsTtlPmPerNrad, 3)} pm/nrad.`}
-                  thetaNrad={thetaNrad}
-                  values={mapY}
-                  colour={colour}
-                  unit="pm/nrad"
-                  marker={result.peakAt.axis === "y" ? peakNode : null}
-                  onHover={setHovered}
-                  size={MAP_SIZE}
-                  testId="map-y"
-                />
-                <ColourBar lo={lo} hi={hi} ramp={DIVERGING_RAMP} unit="pm/nrad" height={MAP_SIZE} />
-              </>
+              <HeatmapFigure
+                title="Surrogate TTL maps"
+                kind="signed"
+                quantity="surrogate c"
+                thetaNrad={thetaNrad}
+                unit={MAP_UNIT}
+                size={MAP_SIZE}
+                comments={[wavefrontComment]}
+                readoutTestId="hover-readout"
+                maps={[
+                  { label: "c_x", title: "c_x (TTL for tilt about x)", column: "ttl_x_pm_per_nrad", values: mapX, marker: result.peakAt.axis === "x" ? peakNode : null, testId: "map-x" },
+                  { label: "c_y", title: "c_y (TTL for tilt about y)", column: "ttl_y_pm_per_nrad", values: mapY, marker: result.peakAt.axis === "y" ? peakNode : null, testId: "map-y" },
+                ]}
+              />
             ) : (
               <p className="text-sm text-muted">{error ? "No maps: the evaluation was refused." : "Evaluating the first map…"}</p>
             )}
@@ -239,18 +221,6 @@ export function Playground({
                 Peak <span className="font-mono font-medium">{formatNumber(result.peakAbsTtlPmPerNrad, 4)}</span> pm/nrad on c_{result.peakAt.axis} at θ = (
                 <span className="font-mono">{formatNumber(result.peakAt.thetaXNrad, 3)}</span>,{" "}
                 <span className="font-mono">{formatNumber(result.peakAt.thetaYNrad, 3)}</span>) nrad (circled)
-              </p>
-              <p className="text-muted" data-testid="hover-readout">
-                {hovered && hoveredValues ? (
-                  <>
-                    Node ({hovered.ix}, {hovered.iy}) at θ = (<span className="font-mono">{formatNumber(hovered.thetaXNrad, 3)}</span>,{" "}
-                    <span className="font-mono">{formatNumber(hovered.thetaYNrad, 3)}</span>) nrad: c_x{" "}
-                    <span className="font-mono text-ink">{formatNumber(hoveredValues.x, 4)}</span>, c_y{" "}
-                    <span className="font-mono text-ink">{formatNumber(hoveredValues.y, 4)}</span> pm/nrad
-                  </>
-                ) : (
-                  "Point at a node for its values."
-                )}
               </p>
             </div>
           )}
@@ -276,29 +246,19 @@ export function Playground({
           {exact && differenceX && differenceY && (
             <div className={`flex flex-col gap-2 ${exactStale ? "opacity-60" : ""}`} data-testid="difference-maps">
               {exactStale && <p className="text-xs text-caution">The coefficients have changed since: run Exact again for this wavefront.</p>}
-              <div className="flex flex-wrap items-start gap-4">
-                <NodeHeatmap
-                  title="c_x: surrogate − exact"
-                  description={`Difference map of c_x; largest |difference| ${formatNumber(exact.answer.maxAbsDifferencePmPerNrad, 3)} pm/nrad.`}
-                  thetaNrad={thetaNrad}
-                  values={differenceX}
-                  colour={differenceColour}
-                  unit="pm/nrad"
-                  size={MAP_SIZE}
-                  marker={exact.answer.maxAbsDifferenceAt?.axis === "x" ? worstDifference : null}
-                />
-                <NodeHeatmap
-                  title="c_y: surrogate − exact"
-                  description={`Difference map of c_y; largest |difference| ${formatNumber(exact.answer.maxAbsDifferencePmPerNrad, 3)} pm/nrad.`}
-                  thetaNrad={thetaNrad}
-                  values={differenceY}
-                  colour={differenceColour}
-                  unit="pm/nrad"
-                  size={MAP_SIZE}
-                  marker={exact.answer.maxAbsDifferenceAt?.axis === "y" ? worstDifference : null}
-                />
-                <ColourBar lo={dLo} hi={dHi} ramp={DIVERGING_RAMP} unit="pm/nrad" height={MAP_SIZE} />
-              </div>
+              <HeatmapFigure
+                title="Surrogate − exact"
+                kind="signed"
+                quantity="surrogate − exact"
+                thetaNrad={thetaNrad}
+                unit={MAP_UNIT}
+                size={MAP_SIZE}
+                comments={[wavefrontComment, "blank where the far field has a null (TTL undefined)"]}
+                maps={[
+                  { label: "c_x", title: "c_x: surrogate − exact", column: "difference_x_pm_per_nrad", values: differenceX, marker: exact.answer.maxAbsDifferenceAt?.axis === "x" ? worstDifference : null },
+                  { label: "c_y", title: "c_y: surrogate − exact", column: "difference_y_pm_per_nrad", values: differenceY, marker: exact.answer.maxAbsDifferenceAt?.axis === "y" ? worstDifference : null },
+                ]}
+              />
               <p className="text-sm" data-testid="exact-summary">
                 Largest |surrogate − exact|{" "}
                 <span className="font-mono font-medium">{formatNumber(exact.answer.maxAbsDifferencePmPerNrad, 3)}</span> pm/nrad
