@@ -1,6 +1,8 @@
 // Runs once when the server starts (Next.js instrumentation hook).
 export async function register(): Promise<void> {
   if (process.env.NEXT_RUNTIME !== "nodejs") return;
+  // Configuration validated before anything else: a bad variable stops the server with a message naming it.
+  (await import("./lib/config/startup")).validateConfigOrExit();
   const [{ warmModelCache }, { releasedEvaluationTargets }, { warmRateLimiter }] = await Promise.all([
     import("./lib/registry/evaluate"),
     import("./lib/db/versions"),

@@ -1,6 +1,7 @@
 // npm run loadtest: the evaluate API under load, against the production build with real MariaDB and Redis and token
 // authentication, on the demo released model (velora-transmit v2: 595 terms, 25 x 25 nodes). It starts what it
-// needs (the test MariaDB and Redis instances, a throw-away database seeded with the demo, `next start`), prints a
+// needs (the test MariaDB and Redis instances, a throw-away database seeded with the demo, the
+// production server of server/main.ts), prints a
 // table of figures against the targets, and stops everything it started. Figures, not assertions: timings on a
 // shared 2-core machine vary by tens of per cent from one minute to the next.
 import { spawn, spawnSync, type ChildProcess } from "node:child_process";
@@ -41,10 +42,18 @@ async function freePort(): Promise<number> {
   });
 }
 
+const plainNext = process.argv.includes("--next-start");
+// `--cpu-prof DIR`: the server writes a V8 CPU profile there when it stops (open it in Chrome's DevTools).
+const profileIndex = process.argv.indexOf("--cpu-prof");
+const profileArgs = profileIndex > 0 ? ["--cpu-prof", `--cpu-prof-dir=${process.argv[profileIndex + 1]}`] : [];
 let server: ChildProcess | null = null;
 async function startServer(port: number): Promise<number> {
   const began = performance.now();
-  server = spawn(`${root}/node_modules/.bin/next`, ["start", "-H", "127.0.0.1", "-p", String(port)], { cwd: root, env, stdio: ["ignore", "ignore", "inherit"] });
+  // The production server of `npm start` (server/main.ts); `--next-start` measures plain `next start` for comparison.
+  const command = plainNext
+    ? [`${root}/node_modules/.bin/next`, "start", "-H", "127.0.0.1", "-p", String(port)]
+    : [process.execPath, ...profileArgs, "--import", "tsx", `${root}/server/main.ts`, "-H", "127.0.0.1", "-p", String(port)];
+  server = spawn(command[0], command.slice(1), { cwd: root, env, stdio: ["ignore", "ignore", "inherit"] });
   for (;;) {
     try {
       const response = await fetch(`http://127.0.0.1:${port}/api/v1/openapi.json`);
@@ -108,7 +117,7 @@ async function main(): Promise<void> {
   const batch10000 = JSON.stringify({ wavefronts: Array.from({ length: 10000 }, (_, i) => wavefront(i)), output: "summary" });
 
   const startupMs = await startServer(port);
-  console.error(`[loadtest] next start answering after ${fmt(startupMs)} ms`);
+  console.error(`[loadtest] ${plainNext ? "next start" : "server/main.ts"} answering after ${fmt(startupMs)} ms`);
   const t0 = performance.now();
   const first = await fetch(url, { method: "POST", headers, body: single });
   await first.arrayBuffer();
@@ -119,10 +128,20 @@ async function main(): Promise<void> {
   const cannon = (body: string, connections: number, seconds: number) =>
     autocannon({ url, method: "POST", headers, body, connections, duration: seconds, pipelining: 1 });
   await cannon(single, 10, 2); // warm-up
+  // Closed loop: 50 connections, each sending its next request as soon as the answer arrives; measures capacity.
+  // Its latency is queueing by construction (mean = 50 / throughput), so the latency target is measured open loop:
+  // 1,000 requests/s offered over the same 50 connections, as 50 clients at 20 requests/s each would send them.
   const offsets = await cannon(single, 50, 10);
   if (offsets.non2xx > 0) console.error(`[loadtest] ${offsets.non2xx} non-2xx answers in the single-offset run`);
-  report("single offset, 50 connections: throughput", `${fmt(offsets.requests.average)} req/s`, ">= 1000 req/s", offsets.requests.average >= 1000);
-  report("single offset, 50 connections: p99 latency", `${fmt(offsets.latency.p99)} ms`, "< 25 ms", offsets.latency.p99 < 25);
+  report("single offset, 50 connections flat out: throughput", `${fmt(offsets.requests.average)} req/s (p99 ${fmt(offsets.latency.p99)} ms)`, ">= 1000 req/s", offsets.requests.average >= 1000);
+  const paced = await autocannon({ url, method: "POST", headers, body: single, connections: 50, duration: 10, pipelining: 1, overallRate: 1000 });
+  if (paced.non2xx > 0) console.error(`[loadtest] ${paced.non2xx} non-2xx answers in the paced single-offset run`);
+  report(
+    "single offset, 1,000 req/s offered over 50 connections: p99 latency",
+    `${fmt(paced.latency.p99)} ms (p50 ${fmt(paced.latency.p50)} ms, ${fmt(paced.requests.average)} req/s served)`,
+    "< 25 ms",
+    paced.latency.p99 < 25 && paced.requests.average >= 950,
+  );
 
   const maps = await cannon(full, 1, 5);
   report("full map (595 terms, 25 x 25): p50 latency", `${fmt(maps.latency.p50)} ms`, "< 10 ms", maps.latency.p50 < 10);

@@ -1,4 +1,5 @@
 import type { ReactNode } from "react";
+import { getConfig } from "@/lib/config";
 import type { UserSummary } from "@/lib/db/users";
 import { navItemsFor } from "./navigation";
 import { NavLinks } from "./nav-links";
@@ -6,7 +7,7 @@ import { SignOutButton } from "./sign-out-button";
 import { StandingNotice } from "./standing-notice";
 
 export function WorkspaceShell({ user, children }: { user: UserSummary; children: ReactNode }) {
-  const items = navItemsFor(user.roles).map(({ href, label }) => ({ href, label }));
+  const items = navItemsFor(user.roles, { mailbox: getConfig().mail.mailboxPage }).map(({ href, label }) => ({ href, label }));
   return (
     <div className="flex min-h-screen flex-col">
       <a href="#main" className="sr-only focus:not-sr-only focus:absolute focus:left-2 focus:top-2 focus:bg-surface focus:p-2">

@@ -18,7 +18,7 @@ build_if_needed() {
     reason="no build yet"
   else
     local newer
-    newer="$(cd "$repo_root" && find app components lib fonts public proxy.ts instrumentation.ts next.config.mjs tailwind.config.ts \
+    newer="$(cd "$repo_root" && find app components lib fonts public proxy.ts instrumentation.ts next.config.ts tailwind.config.ts \
       postcss.config.mjs tsconfig.json package-lock.json -newer "$build_id" -type f -print -quit 2>/dev/null || true)"
     [[ -n "$newer" ]] && reason="$newer changed since the last build"
   fi

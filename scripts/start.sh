@@ -59,7 +59,7 @@ node "$repo_root/bin/stillpoint.mjs" worker &
 worker_pid=$!
 
 echo "[start] serving on http://127.0.0.1:$port (demo accounts: see README.md)" >&2
-"$repo_root/node_modules/.bin/next" start -H 127.0.0.1 -p "$port" &
+node --import tsx "$repo_root/server/main.ts" -H 127.0.0.1 -p "$port" &
 server_pid=$!
 # Stop everything when either the server or the worker ends.
 wait -n "$server_pid" "$worker_pid"

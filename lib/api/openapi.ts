@@ -225,14 +225,14 @@ const OPERATIONS: Operation[] = [
   {
     method: "post", path: "/api/v1/models/{slug}/versions/{version}/review", id: "reviewVersion", summary: "Approve a version in review (-> released) or return it to draft with a comment",
     who: "a reviewer who did not make the version (session only)", body: { schema: reviewBodySchema },
-    ok: { status: "200", description: "The version after the decision", content: json(ref("Version")) }, problems: ["400", "401", "403", "404", "409", "422"],
+    ok: { status: "200", description: "The version after the decision (its modeller is sent the decision and the comment by e-mail)", content: json(ref("Version")) }, problems: ["400", "401", "403", "404", "409", "422"],
   },
   {
     method: "post", path: "/api/v1/models/{slug}/versions/{version}/retire", id: "retireVersion", summary: "Retire a released version with a reason, a sunset and an optional successor",
     who: "admin (session only)", body: { schema: retireBodySchema },
     ok: { status: "200", description: "The version, retired", content: json(ref("Version")) }, problems: ["400", "401", "403", "404", "409", "422"],
   },
-  { method: "post", path: "/api/v1/models/{slug}/versions/{version}/submit", id: "submitVersion", summary: "Submit a draft for review", who: "its modeller (session or train token)", ok: { status: "200", description: "The version, in-review", content: json(ref("Version")) }, problems: ["401", "403", "404", "409"] },
+  { method: "post", path: "/api/v1/models/{slug}/versions/{version}/submit", id: "submitVersion", summary: "Submit a draft for review", who: "its modeller (session or train token)", ok: { status: "200", description: "The version, in-review (every other reviewer is told by e-mail)", content: json(ref("Version")) }, problems: ["401", "403", "404", "409"] },
   {
     method: "post", path: "/api/v1/models/{slug}/generating-sets", id: "uploadGeneratingSet", summary: "Upload a generating set (.npz from numpy.savez or savez_compressed)", who: "modeller / train",
     body: { content: { "multipart/form-data": { schema: { type: "object", required: ["file"], properties: { file: { type: "string", contentMediaType: "application/zip" } } } } } },

@@ -37,8 +37,35 @@ function isConnectionFailure(error: unknown): boolean {
   return (typeof code === "string" && CONNECTION_CODES.has(code)) || name === "KnexTimeoutError";
 }
 
+/** What an API token looks like (lib/db/tokens.ts TOKEN_PREFIX + 43 base64url characters), wherever it appears. */
+const TOKEN_LIKE = /stp_[A-Za-z0-9_-]{20,}/g;
+/** Longest message a problem carries: messages may quote what the client sent, which may be anything. */
+const MAX_MESSAGE_CHARS = 500;
+
+/**
+ * A message as a problem may carry it: anything shaped like an API token replaced (a client that put its token in the
+ * wrong field gets no echo of it, and no log line holds one), and cut to MAX_MESSAGE_CHARS.
+ */
+export function redactSecrets(text: string): string {
+  const redacted = text.replace(TOKEN_LIKE, "stp_[redacted]");
+  return redacted.length > MAX_MESSAGE_CHARS ? `${redacted.slice(0, MAX_MESSAGE_CHARS - 1)}…` : redacted;
+}
+
+function redacted(problem: ProblemDetails): ProblemDetails {
+  return {
+    ...problem,
+    ...(problem.detail === undefined ? {} : { detail: redactSecrets(problem.detail) }),
+    ...(problem.instance === undefined ? {} : { instance: redactSecrets(problem.instance) }),
+    ...(problem.issues ? { issues: problem.issues.map((issue) => ({ path: redactSecrets(issue.path), message: redactSecrets(issue.message) })) } : {}),
+  };
+}
+
 /** The one mapping from anything thrown by a handler to a problem-details response. */
 export function toProblem(error: unknown, instance?: string): ProblemDetails {
+  return redacted(unredactedProblem(error, instance));
+}
+
+function unredactedProblem(error: unknown, instance?: string): ProblemDetails {
   if (error instanceof ZodError) {
     return {
       type: "about:blank",
@@ -62,7 +89,9 @@ export function toProblem(error: unknown, instance?: string): ProblemDetails {
   if (error instanceof SyntaxError) {
     return { type: "about:blank", title: "Malformed JSON", status: 400, detail: "The request body is not valid JSON.", instance };
   }
-  console.error("unhandled error in route handler", error);
+  // The message and stack only: an error object may carry the request (headers with a token) among its properties.
+  const what = error instanceof Error ? `${error.name}: ${error.message}\n${error.stack ?? ""}` : String(error);
+  console.error(`unhandled error in route handler ${instance ?? ""}: ${what.slice(0, 4000).replace(TOKEN_LIKE, "stp_[redacted]")}`);
   return {
     type: "about:blank",
     title: "Internal error",

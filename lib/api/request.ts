@@ -11,6 +11,11 @@ export const MAX_JSON_BYTES = 32 * 1024 * 1024;
  * it does not match.
  */
 export async function readJson<S extends z.ZodType>(request: Request, schema: S): Promise<z.output<S>> {
+  return schema.parse(await readJsonValue(request));
+}
+
+/** The request's JSON body, not yet checked: 400 when it is not JSON, 413 when too large. */
+export async function readJsonValue(request: Request): Promise<unknown> {
   const length = Number(request.headers.get("content-length") ?? "0");
   if (length > MAX_JSON_BYTES) throw new PayloadTooLargeError(`The body is ${length} bytes; the limit is ${MAX_JSON_BYTES}.`);
   const text = await request.text();
@@ -22,7 +27,7 @@ export async function readJson<S extends z.ZodType>(request: Request, schema: S)
     throw new MalformedJsonError("The request body is not valid JSON.");
   }
   if (value === undefined) throw new MalformedJsonError("The request needs a JSON body.");
-  return schema.parse(value);
+  return value;
 }
 
 /** The query string parsed with a schema (422 naming the parameter). */

@@ -8,6 +8,8 @@ declare module "next-auth" {
   }
   interface Session {
     user: { id: number; email: string; name: string; roles: Role[] };
+    /** The session epoch written at sign-in (see User.sessionEpoch). */
+    sessionEpoch: number;
   }
 }
 

@@ -2,7 +2,7 @@ import type { NextAuthOptions, User } from "next-auth";
 import CredentialsProvider from "next-auth/providers/credentials";
 import { getConfig, requireAuthSecret } from "../config";
 import { recordAuditEvent } from "../db/audit";
-import { findCredentialsByEmail, getUser, normaliseEmail, sessionStanding } from "../db/users";
+import { findCredentialsByEmail, getUser, normaliseEmail } from "../db/users";
 import { signInSchema } from "../validation/auth";
 import { verifyPassword } from "./password";
 import { isRole } from "../access/roles";
@@ -41,14 +41,6 @@ async function authorize(raw: Record<string, unknown> | undefined, request: Auth
   return { id: String(user.id), email: user.email, name: user.name, roles: user.roles, sessionEpoch: credentials.sessionEpoch };
 }
 
-/** Thrown inside the jwt callback: next-auth then treats the session as absent and clears its cookie. */
-export class SessionEndedError extends Error {
-  constructor(reason: string) {
-    super(`session ended: ${reason}`);
-    this.name = "SessionEndedError";
-  }
-}
-
 /** next-auth settings; built on demand so the secret is read from the validated configuration at run time. */
 export function authOptions(): NextAuthOptions {
   return {
@@ -67,26 +59,12 @@ export function authOptions(): NextAuthOptions {
       }),
     ],
     callbacks: {
-      async jwt({ token, user }) {
+      jwt({ token, user }) {
         if (user) {
           token.userId = Number(user.id);
           token.roles = user.roles;
           token.sessionEpoch = user.sessionEpoch;
-          return token;
         }
-        // Every later read of the session: a disabled account, or one whose epoch moved on (password changed,
-        // account disabled) has no session any more.
-        let standing: Awaited<ReturnType<typeof sessionStanding>>;
-        try {
-          standing = typeof token.userId === "number" ? await sessionStanding(token.userId) : null;
-        } catch {
-          // The database is unreachable: keep the session; reading the person (getSessionUser) fails next and the
-          // request answers 503, rather than signing everybody out during an outage.
-          return token;
-        }
-        if (!standing) throw new SessionEndedError("no such account");
-        if (standing.disabled) throw new SessionEndedError("account disabled");
-        if (standing.sessionEpoch !== (token.sessionEpoch ?? 0)) throw new SessionEndedError("signed in before the password changed");
         return token;
       },
       session({ session, token }) {
@@ -96,6 +74,8 @@ export function authOptions(): NextAuthOptions {
           name: token.name ?? "",
           roles: (token.roles ?? []).filter(isRole),
         };
+        // Compared with the person's row on every request by getSessionUser (lib/auth/session.ts).
+        session.sessionEpoch = token.sessionEpoch ?? 0;
         return session;
       },
     },
@@ -105,12 +85,11 @@ export function authOptions(): NextAuthOptions {
 
 /**
  * next-auth's log lines, without what they carry: its errors may hold the request's body (a password) or a token,
- * so only the code and the error's name and message leave, and an ended session is not an error at all.
+ * so only the code and the error's name and message leave.
  */
 const sessionLogger: NonNullable<NextAuthOptions["logger"]> = {
   error(code, metadata) {
     const error = metadata instanceof Error ? metadata : (metadata as { error?: unknown } | undefined)?.error;
-    if (error instanceof SessionEndedError) return;
     const what = error instanceof Error ? `${error.name}: ${error.message}` : "";
     console.error(`next-auth ${code}${what ? ` (${what})` : ""}`);
   },

@@ -67,7 +67,7 @@ const configSchema = z.object({
   /** How long a session lasts without being used, hours (next-auth's maxAge; each request renews it). */
   SESSION_MAX_AGE_HOURS: z.coerce.number().min(0.01).max(24 * 30).default(12),
   /** How long opening a database connection and waiting for a free one from the pool may take, ms. */
-  DATABASE_CONNECT_TIMEOUT_MS: z.coerce.number().int().min(100).max(60_000).default(2_000),
+  DATABASE_CONNECT_TIMEOUT_MS: z.coerce.number().int().min(100).max(60_000).default(3_000),
   NEXTAUTH_SECRET: z
     .string({ error: "is required (scripts/start.sh creates one in .data/auth-secret)" })
     .min(32, "must be at least 32 characters")

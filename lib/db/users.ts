@@ -86,6 +86,17 @@ export async function getUser(id: number, conn: Knex = db()): Promise<UserSummar
   return toSummary(row, roles.get(id) ?? []);
 }
 
+/**
+ * The person behind a session, with what the session is checked against, in one read: the epoch the session must
+ * carry and whether the account is disabled (lib/auth/session.ts).
+ */
+export async function getUserForSession(id: number, conn: Knex = db()): Promise<{ user: UserSummary; standing: SessionStanding } | null> {
+  const row: UserRow | undefined = await conn<UserRow>("users").where({ id }).first();
+  if (!row) return null;
+  const roles = await rolesByUser([id], conn);
+  return { user: toSummary(row, roles.get(id) ?? []), standing: { sessionEpoch: Number(row.session_epoch), disabled: row.disabled_at !== null } };
+}
+
 export async function listUsers(conn: Knex = db()): Promise<UserSummary[]> {
   const rows: UserRow[] = await conn<UserRow>("users").select("*").orderBy("email");
   const roles = await rolesByUser(

@@ -33,6 +33,17 @@ export function nollCoefficients(wavefront: Wavefront): Map<number, number> {
   return out;
 }
 
+const positions = new WeakMap<readonly number[], Map<number, number>>();
+/** Position of each Noll index in a term list, made once per list (a batch converts thousands of wavefronts). */
+function positionsOf(nollIndices: readonly number[]): Map<number, number> {
+  let position = positions.get(nollIndices);
+  if (!position) {
+    position = new Map(nollIndices.map((j, i) => [j, i]));
+    positions.set(nollIndices, position);
+  }
+  return position;
+}
+
 /**
  * Coefficient vector (nm RMS) of a wavefront over the given Noll terms; terms the
  * wavefront does not mention are zero.
@@ -40,7 +51,7 @@ export function nollCoefficients(wavefront: Wavefront): Map<number, number> {
  */
 export function wavefrontToVector(wavefront: Wavefront, nollIndices: readonly number[]): Float64Array {
   const coefficients = nollCoefficients(wavefront);
-  const position = new Map(nollIndices.map((j, i) => [j, i]));
+  const position = positionsOf(nollIndices);
   const out = new Float64Array(nollIndices.length);
   for (const [noll, value] of coefficients) {
     const i = position.get(noll);

@@ -7,7 +7,7 @@ import { requireFiniteCoefficients } from "../optics/checks.ts";
 import { validateSetup } from "../optics/setup.ts";
 import type { FlatTtlMaps, OpticalSetup } from "../optics/types.ts";
 import { requireNollIndices } from "../optics/zernike.ts";
-import { checkCoefficients, checkFinite } from "../surrogate/evaluate.ts";
+import { checkCoefficients, checkFinite, MAP_SUMMARY_WIDTH } from "../surrogate/evaluate.ts";
 import type { AnalysisRequest, AnalysisResult } from "../surrogate/analysis.ts";
 import type { SurrogateModel } from "../surrogate/model.ts";
 import type { ComputeTask, SharedModel } from "./computeTask.ts";
@@ -57,6 +57,12 @@ export interface ComputePool {
    * @throws RangeError from the analysis
    */
   analyse<R extends AnalysisRequest>(model: SurrogateModel | null, request: R): Promise<AnalysisResult<R>>;
+  /**
+   * What {@link summariseMapsInto} reports of each wavefront's maps (`S x 4`: peak, its node and axis, the largest
+   * `c_x^2 + c_y^2`), made in the workers, so that the maps never reach the calling thread.
+   * @throws {RangeError} as `evaluateBatch`, and when a map is not finite
+   */
+  summariseBatch(model: SurrogateModel, coefficientsNm: ArrayLike<number>): Promise<Float64Array>;
   /** Stop the workers (waits for running tasks to end). */
   close(): Promise<void>;
 }
@@ -150,6 +156,27 @@ export function createComputePool(options: { threads?: number } = {}): ComputePo
     }
     return shared;
   };
+  /** Rows shared out between the threads; the output is the maps, or with `summary` their summaries. */
+  const runEvaluation = async (model: SurrogateModel, coefficientsNm: ArrayLike<number>, summary: boolean): Promise<Float64Array> => {
+    const samples = checkCoefficients(model, coefficientsNm, true);
+    const width = summary ? MAP_SUMMARY_WIDTH : 2 * model.pointsPerAxis * model.pointsPerAxis;
+    const shared = sharedModel(model);
+    const input = new SharedArrayBuffer(Math.max(8, coefficientsNm.length * 8));
+    new Float64Array(input, 0, coefficientsNm.length).set(coefficientsNm);
+    const output = new SharedArrayBuffer(Math.max(8, samples * width * 8));
+    const share = Math.ceil(samples / threads);
+    const jobs: Promise<unknown>[] = [];
+    for (let rowStart = 0; rowStart < samples; rowStart += share) {
+      const task: ComputeTask = {
+        kind: "evaluate", summary, model: shared, input, inputLength: coefficientsNm.length, output, outputLength: samples * width,
+        rowStart, rowEnd: Math.min(samples, rowStart + share),
+      };
+      jobs.push(pool.run(task));
+    }
+    await Promise.all(jobs);
+    return new Float64Array(output, 0, samples * width);
+  };
+
 
   /** Rows of a batch shared out over the threads, input and `samples x width` output in shared memory. */
   const sharedRows = async (kind: "evaluate" | "peaks", model: SurrogateModel, coefficientsNm: ArrayLike<number>, samples: number, width: number) => {
@@ -222,8 +249,7 @@ export function createComputePool(options: { threads?: number } = {}): ComputePo
     },
 
     async evaluateBatch(model, coefficientsNm) {
-      const samples = checkCoefficients(model, coefficientsNm, true);
-      const out = await sharedRows("evaluate", model, coefficientsNm, samples, 2 * model.pointsPerAxis * model.pointsPerAxis);
+      const out = await runEvaluation(model, coefficientsNm, false);
       checkFinite(out);
       return out;
     },
@@ -237,6 +263,14 @@ export function createComputePool(options: { threads?: number } = {}): ComputePo
 
     async analyse(model, request) {
       return pool.run({ kind: "analysis", model: model ? sharedModel(model) : null, request } satisfies ComputeTask);
+    },
+
+    async summariseBatch(model, coefficientsNm) {
+      const out = await runEvaluation(model, coefficientsNm, true);
+      for (let s = 0; s < out.length; s += MAP_SUMMARY_WIDTH) {
+        if (Number.isNaN(out[s])) throw new RangeError("wavefront coefficients are too large: the surrogate TTL is not finite");
+      }
+      return out;
     },
 
     async close() {

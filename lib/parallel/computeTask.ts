@@ -1,6 +1,6 @@
 import type { SurrogateModel } from "../surrogate/model.ts";
 import { runAnalysis, type AnalysisRequest } from "../surrogate/analysis.ts";
-import { evaluateBatchInto, evaluateBatchPeaksInto } from "../surrogate/evaluate.ts";
+import { evaluateBatchInto, evaluateBatchPeaksInto, MAP_SUMMARY_WIDTH, summariseMapsInto } from "../surrogate/evaluate.ts";
 import { runTtlTask, type TtlTask } from "./ttlTask.ts";
 
 /**
@@ -13,8 +13,12 @@ export interface SharedModel {
   coefficients: SharedArrayBuffer;
 }
 
-/** Rows `[rowStart, rowEnd)` of a batch; input `S x J` and output `S x 2 M^2` live in shared memory. */
+/**
+ * Rows `[rowStart, rowEnd)` of a batch; input `S x J` and output live in shared memory. The output is the maps,
+ * `S x 2 M^2`, or with `summary` only what {@link summariseMapsInto} reports of each (`S x 4`).
+ */
 export interface EvaluateTask {
+  summary?: boolean;
   model: SharedModel;
   input: SharedArrayBuffer;
   inputLength: number;
@@ -35,6 +39,9 @@ export type ComputeTask =
   | ({ kind: "evaluate" } & EvaluateTask)
   | ({ kind: "peaks" } & EvaluateTask)
   | ({ kind: "analysis" } & AnalysisTask);
+
+/** Rows evaluated together for a summary: 64 demo maps are 640 KB. */
+const SUMMARY_ROWS = 64;
 
 /** Models seen by this thread, most recently used last; bounded so that a long-lived worker does not grow. */
 const models = new Map<number, SurrogateModel>();
@@ -70,7 +77,24 @@ export function runComputeTask(task: ComputeTask): Float64Array | null | unknown
   if (task.kind === "analysis") return runAnalysis(task.model ? modelFor(task.model) : null, task.request);
   const input = new Float64Array(task.input, 0, task.inputLength);
   const output = new Float64Array(task.output, 0, task.outputLength);
-  if (task.kind === "peaks") evaluateBatchPeaksInto(modelFor(task.model), input, output, task.rowStart, task.rowEnd);
-  else evaluateBatchInto(modelFor(task.model), input, output, task.rowStart, task.rowEnd);
+  const model = modelFor(task.model);
+  if (task.kind === "peaks") {
+    evaluateBatchPeaksInto(model, input, output, task.rowStart, task.rowEnd);
+    return null;
+  }
+  if (!task.summary) {
+    evaluateBatchInto(model, input, output, task.rowStart, task.rowEnd);
+    return null;
+  }
+  // Maps of a few rows at a time in this thread's memory; only their summaries reach the shared output.
+  const J = model.nollIndices.length;
+  const nodes = model.pointsPerAxis * model.pointsPerAxis;
+  const scratch = new Float64Array(SUMMARY_ROWS * 2 * nodes);
+  for (let r0 = task.rowStart; r0 < task.rowEnd; r0 += SUMMARY_ROWS) {
+    const rows = Math.min(SUMMARY_ROWS, task.rowEnd - r0);
+    const maps = scratch.subarray(0, rows * 2 * nodes);
+    evaluateBatchInto(model, input.subarray(r0 * J, (r0 + rows) * J), maps);
+    summariseMapsInto(maps, nodes, rows, output.subarray(r0 * MAP_SUMMARY_WIDTH, (r0 + rows) * MAP_SUMMARY_WIDTH));
+  }
   return null;
 }

@@ -219,6 +219,18 @@ export function startWorker(options: WorkerOptions): WorkerHandle {
     return written ? "succeeded" : "skipped: the run ended before its version was written";
   }
 
+  /**
+   * A database error's message holds the whole statement, coefficient bytes and all: the run's reason, the job's
+   * failure in Redis and the log keep the server's own message only.
+   */
+  function withoutStatement(error: unknown): unknown {
+    const sqlMessage = (error as { sqlMessage?: unknown } | null)?.sqlMessage;
+    if (typeof sqlMessage !== "string") return error;
+    const clean = new Error(`the database refused the write: ${sqlMessage}`);
+    clean.name = (error as Error).name;
+    return clean;
+  }
+
   const connection = redisConnection("worker");
   const worker = new Worker(
     WORK_QUEUE,
@@ -229,7 +241,7 @@ export function startWorker(options: WorkerOptions): WorkerHandle {
         throw new UnrecoverableError(`unknown job ${job.name}`);
       } catch (error) {
         if (isDeterministic(error)) throw new UnrecoverableError((error as Error).message);
-        throw error;
+        throw withoutStatement(error);
       }
     },
     {

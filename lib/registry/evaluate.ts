@@ -4,9 +4,8 @@ import { evaluatesVersionState, evaluationTarget, loadSurrogateById, type Evalua
 import { ForbiddenError, GoneError, NotFoundError, OutsideValidityRangeError, UnprocessableError } from "../errors.ts";
 import { thetaGridNrad } from "../optics/setup.ts";
 import { wavefrontToVector } from "../optics/wavefront.ts";
-import type { Wavefront } from "../optics/types.ts";
 import type { ComputePool } from "../parallel/computePool.ts";
-import { checkFinite, evaluateInto } from "../surrogate/evaluate.ts";
+import { checkFinite, evaluateInto, MAP_SUMMARY_WIDTH, summariseMapsInto } from "../surrogate/evaluate.ts";
 import { interpolateMap } from "../surrogate/interpolate.ts";
 import { SURROGATE_NOTICE, type SurrogateModel } from "../surrogate/model.ts";
 import { validityWarnings } from "../surrogate/validity.ts";
@@ -114,20 +113,23 @@ export async function evaluateWavefronts(
 
   const issues: { path: string; message: string }[] = [];
   const coefficients = new Float64Array(S * J);
-  body.wavefronts.forEach((wavefront: Wavefront, i) => {
-    try {
-      coefficients.set(wavefrontToVector(wavefront, model.nollIndices), i * J);
-    } catch (error) {
-      issues.push({ path: `wavefronts.${i}.coefficientsNm`, message: (error as Error).message });
+  const warnings: string[][] = new Array(S);
+  for (let start = 0; start < S; start += SLICE) {
+    if (start > 0) await yieldToLoop();
+    for (let i = start; i < Math.min(S, start + SLICE); i++) {
+      try {
+        coefficients.set(wavefrontToVector(body.wavefronts[i], model.nollIndices), i * J);
+        warnings[i] = validityWarnings(model.validity, coefficients.subarray(i * J, (i + 1) * J));
+      } catch (error) {
+        issues.push({ path: `wavefronts.${i}.coefficientsNm`, message: (error as Error).message });
+      }
     }
-  });
+  }
   body.offsetsNrad?.forEach(([tx, ty], k) => {
     if (Math.abs(tx) > h || Math.abs(ty) > h) issues.push({ path: `offsetsNrad.${k}`, message: `offset (${tx}, ${ty}) nrad is outside the map (|theta| <= ${h} nrad)` });
   });
   if (issues.length > 0) throw new UnprocessableError("Some wavefronts or offsets cannot be evaluated on this version; see issues.", issues.slice(0, 100));
 
-  const warnings: string[][] = new Array(S);
-  for (let i = 0; i < S; i++) warnings[i] = validityWarnings(model.validity, coefficients.subarray(i * J, (i + 1) * J));
   if (body.strict) {
     const outside = warnings.map((w, i) => ({ path: `wavefronts.${i}`, message: w.join("; ") })).filter((issue) => issue.message !== "");
     if (outside.length > 0) {
@@ -135,14 +137,15 @@ export async function evaluateWavefronts(
     }
   }
 
-  // Maps of every wavefront: row-major S x [c_x map, c_y map].
-  let maps: Float64Array;
+  // A summary of a large batch is made in the workers from maps that never leave them; otherwise the maps of every
+  // wavefront (row-major S x [c_x map, c_y map]) come here and are summarised slice by slice.
+  const pool = options.pool && S >= POOL_BATCH_THRESHOLD ? (typeof options.pool === "function" ? options.pool() : options.pool) : null;
+  let maps: Float64Array | null = null;
+  let summaries: Float64Array | null = null;
   try {
-    if (options.pool && S >= POOL_BATCH_THRESHOLD) {
-      // A getter starts the pool only when a batch first needs it.
-      const pool = typeof options.pool === "function" ? options.pool() : options.pool;
-      maps = await pool.evaluateBatch(model, coefficients);
-    } else {
+    if (pool && body.output === "summary") summaries = await pool.summariseBatch(model, coefficients);
+    else if (pool) maps = await pool.evaluateBatch(model, coefficients);
+    else {
       maps = new Float64Array(S * 2 * nodes);
       for (let i = 0; i < S; i++) evaluateInto(model, coefficients.subarray(i * J, (i + 1) * J), maps.subarray(i * 2 * nodes, (i + 1) * 2 * nodes));
       checkFinite(maps);
@@ -155,42 +158,33 @@ export async function evaluateWavefronts(
 
   const results: EvaluationResult[] = new Array(S);
   const jitter = body.jitterNrad;
+  const W = MAP_SUMMARY_WIDTH;
+  const slice = new Float64Array(SLICE * W);
   for (let start = 0; start < S; start += SLICE) {
     if (start > 0) await yieldToLoop();
-    for (let i = start; i < Math.min(S, start + SLICE); i++) {
-      const base = i * 2 * nodes;
-      let peak = -1;
-      let peakNode = 0;
-      let peakAxis: "x" | "y" = "x";
-      let noise = 0;
-      for (let n = 0; n < nodes; n++) {
-        const cx = maps[base + n];
-        const cy = maps[base + nodes + n];
-        if (Math.abs(cx) > peak) {
-          peak = Math.abs(cx);
-          peakNode = n;
-          peakAxis = "x";
-        }
-        if (Math.abs(cy) > peak) {
-          peak = Math.abs(cy);
-          peakNode = n;
-          peakAxis = "y";
-        }
-        const magnitude = cx * cx + cy * cy;
-        if (magnitude > noise) noise = magnitude;
-      }
+    const count = Math.min(SLICE, S - start);
+    let summary: Float64Array;
+    if (summaries) summary = summaries.subarray(start * W, (start + count) * W);
+    else {
+      summariseMapsInto(maps!.subarray(start * 2 * nodes, (start + count) * 2 * nodes), nodes, count, slice);
+      summary = slice;
+    }
+    for (let k = 0; k < count; k++) {
+      const i = start + k;
+      const peakNode = summary[k * W + 1];
       const result: EvaluationResult = {
-        peakAbsTtlPmPerNrad: peak,
-        peakAt: { thetaXNrad: theta[peakNode % M], thetaYNrad: theta[Math.floor(peakNode / M)], axis: peakAxis },
+        peakAbsTtlPmPerNrad: summary[k * W],
+        peakAt: { thetaXNrad: theta[peakNode % M], thetaYNrad: theta[Math.floor(peakNode / M)], axis: summary[k * W + 2] === 0 ? "x" : "y" },
         validity: { inRange: warnings[i].length === 0, warnings: warnings[i] },
       };
-      if (jitter !== undefined) result.peakLengthNoisePm = jitter * Math.sqrt(noise);
+      if (jitter !== undefined) result.peakLengthNoisePm = jitter * Math.sqrt(summary[k * W + 3]);
+      const base = i * 2 * nodes;
       if (body.output === "map") {
-        result.ttlXPmPerNrad = nested(maps, base, M);
-        result.ttlYPmPerNrad = nested(maps, base + nodes, M);
+        result.ttlXPmPerNrad = nested(maps!, base, M);
+        result.ttlYPmPerNrad = nested(maps!, base + nodes, M);
       } else if (body.output === "offsets") {
-        const x = maps.subarray(base, base + nodes);
-        const y = maps.subarray(base + nodes, base + 2 * nodes);
+        const x = maps!.subarray(base, base + nodes);
+        const y = maps!.subarray(base + nodes, base + 2 * nodes);
         result.offsets = body.offsetsNrad!.map(([tx, ty]) => ({
           thetaXNrad: tx,
           thetaYNrad: ty,

@@ -281,6 +281,54 @@ export function evaluateBatchPeaksInto(
   checkFinite(peaks.subarray(rowStart, end));
 }
 
+/** Numbers per wavefront in {@link summariseMapsInto}'s output. */
+export const MAP_SUMMARY_WIDTH = 4;
+
+/**
+ * What an evaluation reports of each map without the map itself: for wavefront s, `out[4s]` the peak |TTL| over both
+ * axes and all nodes (pm/nrad; NaN when any value is not finite), `out[4s+1]` its node (row-major `iy * M + ix`),
+ * `out[4s+2]` its axis (0 for x, 1 for y; x wins a tie), `out[4s+3]` the largest `c_x^2 + c_y^2` over the nodes
+ * ((pm/nrad)^2, for the length noise of a pointing jitter, PHYSICS.md section 6).
+ * @param maps row-major `count x [c_x map, c_y map]`, each map `nodes` long
+ * @param out `count x 4`
+ * @throws {RangeError} "maps must hold count x 2 x nodes values" / "out must hold count x 4 values"
+ */
+export function summariseMapsInto(maps: Float64Array, nodes: number, count: number, out: Float64Array): void {
+  if (maps.length < count * 2 * nodes) throw new RangeError("maps must hold count x 2 x nodes values");
+  if (out.length < count * MAP_SUMMARY_WIDTH) throw new RangeError("out must hold count x 4 values");
+  for (let s = 0; s < count; s++) {
+    const base = s * 2 * nodes;
+    let peak = -1;
+    let peakNode = 0;
+    let peakAxis = 0;
+    let noise = 0;
+    let finite = true;
+    for (let n = 0; n < nodes; n++) {
+      const cx = maps[base + n];
+      const cy = maps[base + nodes + n];
+      const ax = Math.abs(cx);
+      const ay = Math.abs(cy);
+      if (ax > peak) {
+        peak = ax;
+        peakNode = n;
+        peakAxis = 0;
+      }
+      if (ay > peak) {
+        peak = ay;
+        peakNode = n;
+        peakAxis = 1;
+      }
+      const magnitude = cx * cx + cy * cy;
+      if (magnitude > noise) noise = magnitude;
+      if (!(ax < Infinity && ay < Infinity)) finite = false;
+    }
+    out[s * MAP_SUMMARY_WIDTH] = finite ? peak : Number.NaN;
+    out[s * MAP_SUMMARY_WIDTH + 1] = peakNode;
+    out[s * MAP_SUMMARY_WIDTH + 2] = peakAxis;
+    out[s * MAP_SUMMARY_WIDTH + 3] = noise;
+  }
+}
+
 /** The chunked batch product behind {@link evaluateBatchInto} (maps) and {@link evaluateBatchPeaksInto} (peaks). */
 function runBatch(
   model: SurrogateModel,

@@ -12,7 +12,7 @@ export { validityFromSamples, validityWarnings, type TermBound, type ValidityRan
 export { residualStatistics, type ErrorSummary, type ResidualStatistics, type RmsBinSummary } from "./statistics.ts";
 export { SURROGATE_NOTICE, type FitReport, type Provenance, type PruningReport, type SurrogateModel } from "./model.ts";
 export {
-  checkCoefficients, checkFinite, compiledTermsOf, evaluateAtOffsets, evaluateBatch, evaluateBatchInto, evaluateInto, evaluateMap,
+  checkCoefficients, checkFinite, compiledTermsOf, MAP_SUMMARY_WIDTH, summariseMapsInto, evaluateAtOffsets, evaluateBatch, evaluateBatchInto, evaluateInto, evaluateMap,
   packedCoefficients, type SurrogateMap,
 } from "./evaluate.ts";
 export { axisWeights, interpolateMap, type AxisWeights } from "./interpolate.ts";

@@ -10,7 +10,8 @@ export function coreCheck<T>(check: (value: T) => unknown, path: PropertyKey[] =
       check(value);
     } catch (error) {
       if (!(error instanceof RangeError || error instanceof TypeError)) throw error;
-      context.addIssue({ code: "custom", path, message: error.message });
+      // A fresh array each time: zod prefixes the path of an issue in place as it climbs out of arrays and objects.
+      context.addIssue({ code: "custom", path: [...path], message: error.message });
     }
   };
 }

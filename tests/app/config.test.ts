@@ -13,7 +13,7 @@ describe("configuration", () => {
       user: "app",
       password: "stillpoint-local",
       poolMax: 10,
-      connectTimeoutMs: 2000,
+      connectTimeoutMs: 3000,
     });
   });
 

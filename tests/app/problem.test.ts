@@ -1,7 +1,7 @@
 import { describe, expect, it, vi } from "vitest";
 import { z } from "zod";
 import { PROBLEM_CONTENT_TYPE, toProblem, withProblems } from "@/lib/api/problem";
-import { ConflictError, ForbiddenError, NotFoundError, OutsideValidityRangeError, UnauthenticatedError } from "@/lib/errors";
+import { ConflictError, ForbiddenError, NotFoundError, OutsideValidityRangeError, UnauthenticatedError, UnprocessableError } from "@/lib/errors";
 
 describe("problem details mapping", () => {
   it("maps a zod error to 422 with one issue per field", () => {
@@ -32,6 +32,15 @@ describe("problem details mapping", () => {
     spy.mockRestore();
     expect(problem.status).toBe(500);
     expect(JSON.stringify(problem)).not.toMatch(/ECONNREFUSED|3307|secret/);
+  });
+
+  it("never carries anything shaped like a token, and cuts a long quoted message", () => {
+    const secret = `stp_${"a1B2".repeat(10)}xyz`;
+    const problem = toProblem(new UnprocessableError(`got ${JSON.stringify(secret)} and ${"x".repeat(5000)}`, [{ path: "ordering", message: `got ${secret}` }]));
+    expect(JSON.stringify(problem)).not.toContain(secret);
+    expect(problem.detail).toContain("stp_[redacted]");
+    expect(problem.detail!.length).toBeLessThanOrEqual(500);
+    expect(problem.issues![0]!.message).toBe("got stp_[redacted]");
   });
 
   it("withProblems answers application/problem+json with the mapped status", async () => {

@@ -1,7 +1,5 @@
-import http from "node:http";
-import type { AddressInfo } from "node:net";
-import next from "next";
 import request from "supertest";
+import { startAppServer as startProductionServer } from "@/server/app-server";
 import { REPO_ROOT, testDatabaseName } from "./test-database";
 
 export interface AppServer {
@@ -14,22 +12,10 @@ export interface AppServer {
 /** The production build (.next, made by scripts/test.sh) served in this process on a free port. */
 export async function startAppServer(): Promise<AppServer> {
   testDatabaseName();
-  const app = next({ dev: false, dir: REPO_ROOT, quiet: true });
-  await app.prepare();
-  const handle = app.getRequestHandler();
-  const server = http.createServer((req, res) => void handle(req, res));
-  await new Promise<void>((resolve) => server.listen(0, "127.0.0.1", resolve));
-  const { port } = server.address() as AddressInfo;
-  const baseUrl = `http://127.0.0.1:${port}`;
-  return {
-    baseUrl,
-    agent: () => request.agent(baseUrl),
-    close: async () => {
-      server.closeAllConnections();
-      await new Promise<void>((resolve, reject) => server.close((error) => (error ? reject(error) : resolve())));
-      await app.close();
-    },
-  };
+  // The same server as `npm start` (server/app-server.ts): Next.js, with token evaluations answered directly.
+  const running = await startProductionServer({ dir: REPO_ROOT, hostname: "127.0.0.1", port: 0, quiet: true });
+  const baseUrl = `http://127.0.0.1:${running.port}`;
+  return { baseUrl, agent: () => request.agent(baseUrl), close: running.close };
 }
 
 type Agent = ReturnType<typeof request.agent>;

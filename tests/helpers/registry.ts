@@ -99,3 +99,23 @@ export async function storeSyntheticVersion(
   const surrogate = syntheticModel(options.scale ?? 1, options.statistics ?? null);
   return db().transaction((trx) => insertVersion(trx, { model, surrogate, file: encodeModel(surrogate), createdBy }));
 }
+
+/**
+ * Residual statistics with made-up figures (the review queue and pages show them; nothing computes them): the given
+ * worst error and its ratio to the peak overall, no RMS bins, a small ramp per node.
+ */
+export function syntheticStatistics(maxAbsErrorPmPerNrad: number, maxErrorRelativeToPeak: number): ResidualStatistics {
+  const ramp = Array.from({ length: 81 }, (_, i) => (maxAbsErrorPmPerNrad * i) / 80);
+  return {
+    overall: {
+      samples: 10,
+      peakAbsTtlPmPerNrad: maxAbsErrorPmPerNrad / maxErrorRelativeToPeak,
+      maxAbsErrorPmPerNrad,
+      rmsErrorPmPerNrad: maxAbsErrorPmPerNrad / 3,
+      maxErrorRelativeToPeak,
+      worstSampleRelativeError: maxErrorRelativeToPeak,
+    },
+    perRmsBin: [],
+    perNode: { maxAbsErrorXPmPerNrad: ramp, maxAbsErrorYPmPerNrad: ramp, rmsErrorXPmPerNrad: ramp, rmsErrorYPmPerNrad: ramp },
+  };
+}

@@ -1,7 +1,7 @@
 import { afterAll, describe, expect, it } from "vitest";
 import { TtlPropagator, type OpticalSetup } from "@/lib/optics/index.ts";
 import { createComputePool } from "@/lib/parallel/index.ts";
-import { evaluateBatch, randomDesign, secondOrderTerms } from "@/lib/surrogate/index.ts";
+import { evaluateBatch, MAP_SUMMARY_WIDTH, randomDesign, secondOrderTerms, summariseMapsInto } from "@/lib/surrogate/index.ts";
 import { chosenCoefficients, syntheticModel } from "../surrogate/helpers.ts";
 
 const noll = [4, 5, 6, 11];
@@ -32,6 +32,41 @@ describe("ComputePool.evaluateBatch", () => {
       new RangeError("coefficient of Noll term 11 must be a finite number (wavefront 0)"),
     );
     expect(() => createComputePool({ threads: 0 })).toThrow(new RangeError("threads must be a positive integer"));
+  });
+});
+
+describe("summariseMapsInto", () => {
+  it("reports the peak, its node and axis and the largest c_x^2 + c_y^2 of hand-made maps", () => {
+    // Two wavefronts on a 2 x 2 map (nodes 0..3); the expected values are read off the numbers by hand.
+    const maps = new Float64Array([
+      0.1, -0.4, 0.2, 0.0, /* c_y */ 0.3, 0.1, -0.4, 0.05,
+      1, 2, 3, 4, /* c_y */ -5, 0, 0, 0,
+    ]);
+    const out = new Float64Array(2 * MAP_SUMMARY_WIDTH);
+    summariseMapsInto(maps, 4, 2, out);
+    // First: |-0.4| at node 1 on x comes before the tie |-0.4| at node 2 on y; the largest magnitude is node 2's
+    // 0.2^2 + 0.4^2 = 0.2 (node 1: 0.16 + 0.01).
+    expect(Array.from(out.subarray(0, 4))).toEqual([0.4, 1, 0, 0.2 ** 2 + 0.4 ** 2]);
+    // Second: |-5| on y at node 0; the largest magnitude 1 + 25 = 26 at node 0.
+    expect(Array.from(out.subarray(4, 8))).toEqual([5, 0, 1, 26]);
+    summariseMapsInto(new Float64Array([1, Number.POSITIVE_INFINITY, 0, 0]), 2, 1, out);
+    expect(out[0]).toBeNaN();
+  });
+});
+
+describe("ComputePool.summariseBatch", () => {
+  it("gives the summaries of the single-thread maps while the maps stay in the workers", async () => {
+    for (const size of [1, 63, 64, 65, 301]) {
+      const input = randomDesign(4, { size, maxRmsNm: 15, seed: 40 + size });
+      const nodes = model.pointsPerAxis ** 2;
+      const expected = new Float64Array(size * MAP_SUMMARY_WIDTH);
+      summariseMapsInto(evaluateBatch(model, input), nodes, size, expected);
+      expect(Array.from(await pool.summariseBatch(model, input))).toEqual(Array.from(expected));
+    }
+  });
+
+  it("refuses a batch whose maps overflow", async () => {
+    await expect(pool.summariseBatch(model, [1e200, 1e200, 1e200, 1e200])).rejects.toThrow(/not finite/);
   });
 });
 

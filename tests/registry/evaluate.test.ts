@@ -122,6 +122,26 @@ describe("evaluating a pinned version", () => {
     }
   });
 
+  it("summarises a large batch in the workers to the numbers of the maps made here", async () => {
+    const wavefronts = Array.from({ length: 300 }, (_, i) => ({ ordering: "noll", coefficientsNm: { "4": Math.sin(i) * 10, "6": Math.cos(i) * 5, "7": i % 7 } }));
+    const pooled = await evaluateWavefronts(viewer, slug, 1, body({ wavefronts, output: "summary", jitterNrad: 8 }), { pool });
+    const here = await evaluateWavefronts(viewer, slug, 1, body({ wavefronts, output: "map", jitterNrad: 8 }), { pool: null });
+    for (let i = 0; i < 300; i += 13) {
+      const maps = [here.results[i].ttlXPmPerNrad!.flat(), here.results[i].ttlYPmPerNrad!.flat()];
+      // Definition of the summary (API.md "Evaluate"), from the maps: peak |TTL| over both axes and its node.
+      const peak = Math.max(...maps[0].map(Math.abs), ...maps[1].map(Math.abs));
+      const noise = 8 * Math.sqrt(Math.max(...maps[0].map((cx, n) => cx * cx + maps[1][n] ** 2)));
+      const got = pooled.results[i];
+      expect(got.ttlXPmPerNrad).toBeUndefined();
+      // The blocked batch product sums in another order than a single map: float64 rounding only.
+      expect(Math.abs(got.peakAbsTtlPmPerNrad - peak)).toBeLessThan(1e-12 * peak);
+      expect(Math.abs(got.peakLengthNoisePm! - noise)).toBeLessThan(1e-12 * noise);
+      const [ix, iy] = [here.head.thetaNrad.indexOf(got.peakAt.thetaXNrad), here.head.thetaNrad.indexOf(got.peakAt.thetaYNrad)];
+      const atPeak = (got.peakAt.axis === "x" ? maps[0] : maps[1])[iy * here.head.thetaNrad.length + ix];
+      expect(Math.abs(Math.abs(atPeak) - peak)).toBeLessThan(1e-12 * peak);
+    }
+  });
+
   it("flags wavefronts outside the validity range, and refuses them with strict", async () => {
     const outside = { ordering: "noll", coefficientsNm: { "4": 80 } };
     const answer = await evaluateWavefronts(viewer, slug, 1, body({ wavefronts: [wavefront, outside], output: "summary" }));

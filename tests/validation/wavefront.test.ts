@@ -1,4 +1,5 @@
 import { describe, expect, it } from "vitest";
+import { z } from "zod";
 import { nollCoefficients } from "@/lib/optics/wavefront.ts";
 import type { Wavefront } from "@/lib/optics/types.ts";
 import { wavefrontInputSchema, wavefrontSchema } from "@/lib/validation/wavefront.ts";
@@ -44,5 +45,14 @@ describe("wavefrontInputSchema: one wavefront or a non-empty array", () => {
     expect(bad.success ? null : bad.error.issues[0]).toMatchObject({
       path: [1], message: "coefficient of Noll term 5 must be a finite number",
     });
+  });
+});
+
+describe("issue paths", () => {
+  it("name the same place however often a bad wavefront is checked inside a list", () => {
+    const bad = [{ ordering: "noll", coefficientsNm: { "4": 1 } }, { ordering: "noll", coefficientsNm: { "0": 1 } }];
+    const list = z.array(wavefrontSchema);
+    const paths = Array.from({ length: 3 }, () => list.safeParse(bad).error!.issues.map((issue) => issue.path));
+    expect(paths).toEqual([[[1]], [[1]], [[1]]]);
   });
 });

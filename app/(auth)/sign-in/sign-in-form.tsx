@@ -1,5 +1,7 @@
 "use client";
 
+// First: zod's browser settings must be in place before the schemas below are built (see the module).
+import "@/components/browser-zod-config";
 import { zodResolver } from "@hookform/resolvers/zod";
 import { signIn } from "next-auth/react";
 import { useRouter } from "next/navigation";

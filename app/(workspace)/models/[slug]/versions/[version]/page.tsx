@@ -14,6 +14,7 @@ import { getVersion } from "@/lib/db/versions";
 import { thetaGridNrad } from "@/lib/optics/setup";
 import type { ErrorSummary } from "@/lib/surrogate/statistics";
 import { ResidualPlots } from "./residual-plots";
+import { ReviewSection } from "./review-section";
 import { SubmitForReview } from "./submit-button";
 
 type Params = Promise<{ slug: string; version: string }>;
@@ -107,6 +108,8 @@ export default async function VersionPage({ params }: { params: Params }) {
           </p>
         )}
       </div>
+
+      <ReviewSection version={v} actor={actor} />
 
       <div className="grid gap-6 lg:grid-cols-3">
         <section aria-labelledby="summary-heading">

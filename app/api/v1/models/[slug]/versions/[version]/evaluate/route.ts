@@ -1,10 +1,10 @@
 import { withProblems } from "@/lib/api/problem";
 import { limitEvaluation } from "@/lib/api/rateLimit";
-import { readJson, versionParam } from "@/lib/api/request";
+import { readJsonValue, versionParam } from "@/lib/api/request";
 import { requireActor } from "@/lib/auth/request";
 import { answerBody, evaluateWavefronts } from "@/lib/registry/evaluate";
 import { serverComputePool } from "@/lib/registry/serverPool";
-import { evaluateBodySchema } from "@/lib/validation/evaluate";
+import { parseEvaluateBody } from "@/lib/validation/evaluate";
 
 export const dynamic = "force-dynamic";
 
@@ -13,7 +13,7 @@ export const POST = withProblems(async (request: Request, { params }: { params: 
   const actor = await requireActor(request);
   const { slug, version } = await params;
   const number = versionParam(version);
-  const body = await readJson(request, evaluateBodySchema);
+  const body = await parseEvaluateBody(await readJsonValue(request));
   await limitEvaluation(actor, body.wavefronts.length);
   const answer = await evaluateWavefronts(actor, slug, number, body, { pool: serverComputePool });
   return new Response(answerBody(answer), {

@@ -1,0 +1,56 @@
+import http from "node:http";
+import type { AddressInfo } from "node:net";
+import next from "next";
+import { releasedEvaluationTargets } from "../lib/db/versions.ts";
+import { warmModelCache } from "../lib/registry/evaluate.ts";
+import { directRoute } from "./direct-routes.ts";
+
+export interface AppServerOptions {
+  /** The project folder holding the production build (.next). */
+  dir: string;
+  hostname: string;
+  /** 0 for a free port. */
+  port: number;
+  quiet?: boolean;
+}
+
+export interface RunningAppServer {
+  server: http.Server;
+  port: number;
+  close: () => Promise<void>;
+}
+
+/**
+ * The production server: Next.js for pages, sessions and every other route, with the token-authenticated evaluate
+ * requests answered by their handler directly (server/direct-routes.ts). `npm start`, the load test and the
+ * full-stack tests all serve through this one function.
+ */
+export async function startAppServer(options: AppServerOptions): Promise<RunningAppServer> {
+  const app = next({ dev: false, dir: options.dir, hostname: options.hostname, port: options.port, quiet: options.quiet });
+  await app.prepare();
+  // instrumentation.ts warms the framework's copy of lib/; the direct path runs this server's own copy, whose
+  // kernels and packed coefficients are made on first use: warm them too (the decoded models are shared).
+  void warmModelCache(() => releasedEvaluationTargets(), options.quiet ? () => {} : console.log);
+  const handle = app.getRequestHandler();
+  const server = http.createServer((req, res) => {
+    const direct = directRoute(req);
+    if (direct) void direct(req, res);
+    else void handle(req, res);
+  });
+  // Keep-alive clients (budget scripts, load generators) reuse their connections.
+  server.keepAliveTimeout = 65_000;
+  await new Promise<void>((resolve, reject) => {
+    server.once("error", reject);
+    server.listen(options.port, options.hostname, () => resolve());
+  });
+  const { port } = server.address() as AddressInfo;
+  return {
+    server,
+    port,
+    close: async () => {
+      server.closeAllConnections();
+      await new Promise<void>((resolve, reject) => server.close((error) => (error ? reject(error) : resolve())));
+      await app.close();
+    },
+  };
+}
