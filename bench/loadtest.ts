@@ -1,9 +1,9 @@
 // npm run loadtest: the evaluate API under load, against the production build with real MariaDB and Redis and token
 // authentication, on the demo released model (velora-transmit v2: 595 terms, 25 x 25 nodes). It starts what it
-// needs (the test MariaDB and Redis instances, a throw-away database seeded with the demo, the
-// production server of server/main.ts), prints a
-// table of figures against the targets, and stops everything it started. Figures, not assertions: timings on a
-// shared 2-core machine vary by tens of per cent from one minute to the next.
+// needs (the test MariaDB and Redis instances, a throw-away database seeded with the demo, the production server of
+// server/main.ts), prints a table of figures against the targets, and stops everything it started. Figures, not
+// assertions: timings on a shared 2-core machine vary by tens of per cent from one minute to the next.
+// Options: --next-start (serve with plain `next start` to compare), --cpu-prof DIR (a V8 CPU profile of the server).
 import { spawn, spawnSync, type ChildProcess } from "node:child_process";
 import { createServer } from "node:net";
 import { fileURLToPath } from "node:url";

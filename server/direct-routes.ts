@@ -1,5 +1,6 @@
 import type { IncomingMessage, ServerResponse } from "node:http";
 import { MAX_JSON_BYTES } from "../lib/api/request.ts";
+import { API_CONTENT_SECURITY_POLICY, STATIC_SECURITY_HEADERS } from "../lib/api/securityHeaders.ts";
 import { POST as evaluate } from "../app/api/v1/models/[slug]/versions/[version]/evaluate/route.ts";
 
 type RouteHandler = (request: Request, context: { params: Promise<Record<string, string>> }) => Promise<Response>;
@@ -30,8 +31,11 @@ const DIRECT_ROUTES: DirectRoute[] = [
   },
 ];
 
-/** Headers every direct answer carries (the framework's own answers get theirs from next.config.mjs). */
-const DIRECT_HEADERS = { "x-content-type-options": "nosniff" };
+/** The headers next.config.ts gives every API answer, which the direct answers carry as well. */
+const DIRECT_HEADERS: Record<string, string> = {
+  ...Object.fromEntries(STATIC_SECURITY_HEADERS.map(({ key, value }) => [key.toLowerCase(), value])),
+  "content-security-policy": API_CONTENT_SECURITY_POLICY,
+};
 
 /** The direct handler for a request, or null when Next.js should answer it. */
 export function directRoute(req: IncomingMessage): ((req: IncomingMessage, res: ServerResponse) => Promise<void>) | null {

@@ -2,7 +2,7 @@ import type { Knex } from "knex";
 import { assertCan, can, type Actor } from "../access/actor.ts";
 import { ConflictError, ForbiddenError, NotFoundError } from "../errors.ts";
 import type { RunKind, RunState } from "../validation/registry.ts";
-import { recordAuditEvent } from "./audit.ts";
+import { auditedBy, recordAuditEvent } from "./audit.ts";
 import { db } from "./knex.ts";
 import { fromJson, pageOf, toIso, type Page, type PageRequest } from "./rows.ts";
 
@@ -191,7 +191,7 @@ export async function cancelRun(actor: Actor, id: number, conn: Knex = db()): Pr
     await trx("runs").where({ id }).update({ state: "cancelled", finished_at: trx.fn.now(3) });
     await trx("run_log").insert({ run_id: id, level: "warning", message: `cancelled by ${actor.email}` });
     await trx("run_chunks").where({ run_id: id }).delete();
-    await recordAuditEvent({ actorUserId: actor.userId, action: "run.cancel", subjectType: "run", subjectId: id }, trx);
+    await recordAuditEvent({ ...auditedBy(actor), action: "run.cancel", subjectType: "run", subjectId: id }, trx);
   });
   return runItem(id, conn);
 }

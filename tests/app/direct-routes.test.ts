@@ -44,9 +44,15 @@ describe("the direct evaluate path", () => {
   it("answers a token exactly as the framework answers the same evaluation for a session", async () => {
     const direct = await withToken(evaluatePath, { method: "POST", body: JSON.stringify(body) });
     expect(direct.status).toBe(200);
-    expect(direct.headers.get("x-content-type-options")).toBe("nosniff");
+    // The security headers of the framework's API answers, the same on both paths.
+    for (const name of ["x-content-type-options", "referrer-policy", "x-frame-options", "content-security-policy", "permissions-policy"]) {
+      expect(direct.headers.get(name), name).toBeTruthy();
+    }
     expect(direct.headers.get("content-type")).toBe("application/json");
     const throughNext = await viewer.post(evaluatePath).send(body).expect(200);
+    for (const name of ["x-content-type-options", "referrer-policy", "x-frame-options", "content-security-policy", "permissions-policy"]) {
+      expect(direct.headers.get(name), name).toBe(throughNext.headers[name]);
+    }
     expect(await direct.json()).toEqual(throughNext.body);
   });
 

@@ -177,6 +177,14 @@ export default async function VersionPage({ params }: { params: Params }) {
             <span className="font-mono">stillpoint eval</span> reads it); <span className="font-mono">.npz</span> opens with{" "}
             <span className="font-mono">numpy.load</span>. Both carry the notice below.
           </p>
+          <p className="mt-2 flex flex-col gap-1 text-sm">
+            <Link href={`/models/${slug}/versions/${v.version}/terms`} className={linkClass} data-testid="terms-link">
+              Coefficient maps and term significance
+            </Link>
+            <Link href={`/models/${slug}/compare?a=${v.version}`} className={linkClass} data-testid="compare-link">
+              Compare with another version
+            </Link>
+          </p>
           <p className="mt-2 text-xs">
             <span className="text-muted">SHA-256 of the coefficients</span>
             <br />
