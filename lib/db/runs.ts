@@ -51,6 +51,9 @@ export interface RunItem {
   finishedAt: string | null;
 }
 
+/** What a stored chunk holds: exact maps of a training or validation set, or what a Monte Carlo share found. */
+export type ChunkSet = "generating" | "validation" | "monte-carlo";
+
 export interface RunLogLine {
   at: string;
   level: "info" | "warning" | "error";
@@ -231,7 +234,7 @@ export async function markRunStarted(runId: number, worker: string, conn: Knex =
  */
 export async function storeRunChunk(
   runId: number,
-  chunk: { sampleSet: "generating" | "validation"; index: number; first: number; count: number; maps: Uint8Array },
+  chunk: { sampleSet: ChunkSet; index: number; first: number; count: number; maps: Uint8Array },
   worker: string,
   conn: Knex = db(),
 ): Promise<{ stored: boolean; done: number; total: number }> {
@@ -252,8 +255,8 @@ export async function storeRunChunk(
 export async function loadRunChunks(
   runId: number,
   conn: Knex = db(),
-): Promise<{ sampleSet: "generating" | "validation"; index: number; first: number; count: number; maps: Uint8Array }[]> {
-  const rows: { sample_set: "generating" | "validation"; chunk_index: number; first_sample: number; sample_count: number; maps: Buffer }[] = await conn("run_chunks")
+): Promise<{ sampleSet: ChunkSet; index: number; first: number; count: number; maps: Uint8Array }[]> {
+  const rows: { sample_set: ChunkSet; chunk_index: number; first_sample: number; sample_count: number; maps: Buffer }[] = await conn("run_chunks")
     .where({ run_id: runId })
     .orderBy(["sample_set", "chunk_index"]);
   return rows.map((r) => ({

@@ -150,7 +150,13 @@ export default async function VersionPage({ params }: { params: Params }) {
               ...(v.pruning
                 ? ([
                     ["Pruned from", `${v.pruning.parentTermCount} terms, budget ${v.pruning.budgetRmsNm} nm, jitter ${v.pruning.jitterNrad} nrad, threshold ${v.pruning.thresholdPm} pm`],
-                    ["Dropped terms add", `≤ ${formatNumber(v.pruning.droppedTtlBoundPmPerNrad, 3)} pm/nrad (≤ ${formatNumber(v.pruning.droppedNoiseBoundPm, 3)} pm)`],
+                    ["Dropped terms: bound", `≤ ${formatNumber(v.pruning.droppedTtlBoundPmPerNrad, 3)} pm/nrad (≤ ${formatNumber(v.pruning.droppedNoiseBoundPm, 3)} pm), per-node bound within the budget`],
+                    [
+                      "Dropped terms: seen",
+                      v.pruning.droppedTtlSeenPmPerNrad === null
+                        ? "not checked (no validation set)"
+                        : `${formatNumber(v.pruning.droppedTtlSeenPmPerNrad, 3)} pm/nrad, largest change on the validation wavefronts scaled into the budget`,
+                    ],
                   ] as [string, ReactNode][])
                 : []),
             ]}
