@@ -10,7 +10,9 @@ export async function proxy(request: NextRequest) {
   const nonce = Buffer.from(crypto.getRandomValues(new Uint8Array(16))).toString("base64");
   const policy = pageContentSecurityPolicy(nonce);
   const isSignIn = request.nextUrl.pathname === "/sign-in" || request.nextUrl.pathname.startsWith("/sign-in/");
-  if (!isSignIn) {
+  // An invitation link opens signed out: its secret is the credential (app/(auth)/invite).
+  const isInvitation = request.nextUrl.pathname.startsWith("/invite/");
+  if (!isSignIn && !isInvitation) {
     const token = await getToken({ req: request, secret: requireAuthSecret() });
     if (!token) {
       const signIn = new URL("/sign-in", request.url);

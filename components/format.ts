@@ -35,3 +35,8 @@ export function formatIndexList(indices: readonly number[]): string {
   }
   return parts.join(", ");
 }
+
+/** A surrogate term by its coefficient's name: the constant "C", a linear term "A_5", a product "B_5,7". */
+export function formatTerm(term: readonly number[]): string {
+  return term.length === 0 ? "C" : term.length === 1 ? `A_${term[0]}` : `B_${term.join(",")}`;
+}

@@ -16,7 +16,7 @@ export function NavLinks({ items }: { items: { href: string; label: string }[] }
               ? !playground && (pathname === "/" || pathname.startsWith("/models") || pathname.startsWith("/runs"))
               : item.href === "/playground"
                 ? playground
-                : pathname.startsWith(item.href);
+                : pathname.startsWith(item.href) && !items.some((other) => other.href.length > item.href.length && other.href.startsWith(item.href) && pathname.startsWith(other.href));
           return (
             <li key={item.href}>
               <Link

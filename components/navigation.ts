@@ -25,6 +25,9 @@ export const NAV_ITEMS: readonly NavItem[] = [
   { href: "/people", label: "People", roles: ["admin"] },
   { href: "/reviews", label: "Reviews", roles: ["reviewer"] },
   { href: "/mailbox", label: "Mailbox", roles: ["admin"], feature: "mailbox" },
+  { href: "/tokens/all", label: "All tokens", roles: ["admin"] },
+  { href: "/versions", label: "Versions", roles: ["admin"] },
+  { href: "/audit", label: "Audit", roles: ["admin"] },
 ];
 
 export function navItemsFor(roles: readonly Role[], features: NavFeatures = { mailbox: false }): NavItem[] {

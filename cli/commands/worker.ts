@@ -21,6 +21,8 @@ export async function run(argv: string[]): Promise<number> {
     // One chunk of the queue is one task of the pool.
     propagate: (setup, nollIndices, coefficientsNm) =>
       pool.propagate(setup, nollIndices, coefficientsNm, { chunkSize: coefficientsNm.length / nollIndices.length }),
+    // A Monte Carlo block's peaks, shared over the pool's threads.
+    evaluatePeaks: (model, coefficientsNm) => pool.evaluatePeaks(model, coefficientsNm),
   });
   const mail = startMailWorker({ log: (line) => process.stderr.write(`[worker ${worker.name}] mail: ${line}\n`) });
   const database = `${config.database.host}:${config.database.port}/${config.database.name}`;

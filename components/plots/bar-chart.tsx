@@ -44,6 +44,7 @@ export function RankedBarChart({
   surrogate = true,
   comments = [],
   extraColumns,
+  onPick,
   width = 640,
   height = 280,
   testId,
@@ -60,6 +61,8 @@ export function RankedBarChart({
   comments?: readonly string[];
   /** More CSV columns per item (same order as `items`). */
   extraColumns?: { columns: string[]; rows: (string | number | null)[][] };
+  /** Called with the index of a clicked bar. */
+  onPick?: (index: number) => void;
   width?: number;
   height?: number;
   testId?: string;
@@ -126,6 +129,8 @@ export function RankedBarChart({
               if (i < 0 || i >= n) tooltip.hide();
               else tooltip.show(i, at);
             }}
+            onClick={() => tooltip.data !== null && onPick?.(tooltip.data)}
+            cursor={onPick ? "pointer" : undefined}
           />
           <AxisBottom top={innerHeight + 10} scale={rank} numTicks={Math.min(10, n)} {...AXIS_STYLE} tickFormat={(v) => String(v)} tickLabelProps={{ ...AXIS_STYLE.tickLabelProps, textAnchor: "middle" }} label={rankLabel} labelOffset={8} />
           <AxisLeft scale={value} numTicks={log ? 6 : 5} tickValues={log ? (logTicks(bottom, top * 1.5) ?? undefined) : undefined} {...AXIS_STYLE} tickFormat={(v) => formatNumber(Number(v), 2)} tickLabelProps={{ ...AXIS_STYLE.tickLabelProps, textAnchor: "end", dx: -2, dy: 3 }} label={`${valueLabel} (${unit})`} labelOffset={34} />

@@ -4,7 +4,7 @@ import { AxisBottom, AxisLeft, AxisRight } from "@visx/axis";
 import { Group } from "@visx/group";
 import { HeatmapRect } from "@visx/heatmap";
 import { scaleLinear } from "@visx/scale";
-import { useEffect, useId, useMemo, useState, type PointerEvent as ReactPointerEvent } from "react";
+import { memo, useEffect, useId, useMemo, useState, type PointerEvent as ReactPointerEvent } from "react";
 import { formatNumber } from "@/components/format";
 import { rasterDataUrl } from "./export";
 import { AXIS_STYLE, PlotFrame, useColourScheme } from "./plot-frame";
@@ -42,8 +42,8 @@ function channels(colour: string): [number, number, number] {
   return [parts[0], parts[1], parts[2]];
 }
 
-/** One map drawn as an image: every node k x k device pixels (no smoothing needed). */
-function MapRaster({ m, size, values, colour }: { m: number; size: number; values: ArrayLike<number | null>; colour: (v: number) => string }) {
+/** One map drawn as an image: every node k x k device pixels (no smoothing needed). Memoised: hovering redraws nothing. */
+const MapRaster = memo(function MapRaster({ m, size, values, colour }: { m: number; size: number; values: ArrayLike<number | null>; colour: (v: number) => string }) {
   const [href, setHref] = useState("");
   useEffect(() => {
     const k = Math.max(1, Math.ceil((2 * size) / m));
@@ -72,10 +72,10 @@ function MapRaster({ m, size, values, colour }: { m: number; size: number; value
     );
   }, [m, size, values, colour]);
   return href ? <image href={href} width={size} height={size} preserveAspectRatio="none" data-raster="" /> : null;
-}
+});
 
-/** One map as one rect per node, each with its value as a native tooltip (small maps). */
-function MapCells({
+/** One map as one rect per node, each with its value as a native tooltip (small maps). Memoised like MapRaster. */
+const MapCells = memo(function MapCells({
   m,
   cell,
   thetaNrad,
@@ -125,7 +125,7 @@ function MapCells({
       }
     </HeatmapRect>
   );
-}
+});
 
 /** The colour bar of the maps of a figure: the ramp over `[lo, hi]` with ticks, labelled with the unit. */
 export function ColourBar({ lo, hi, ramp, unit, height, left, top }: { lo: number; hi: number; ramp: readonly string[]; unit: string; height: number; left: number; top: number }) {
@@ -199,7 +199,8 @@ export function HeatmapFigure({
   const angle = scaleLinear<number>({ domain: [-h, h], range: [cell / 2, size - cell / 2] });
   const angleUp = scaleLinear<number>({ domain: [-h, h], range: [size - cell / 2, cell / 2] });
   const blockWidth = MARGIN.left + size + MARGIN.right;
-  const width = maps.length * blockWidth + BAR.gap + BAR.width + BAR.labels;
+  // Room right of the bar for its tick labels and for the unit written above it (about 5.6 px per character at 10 px).
+  const width = maps.length * blockWidth + BAR.gap + Math.max(BAR.width + BAR.labels, Math.ceil(unit.length * 5.6) + 4);
   const height = MARGIN.top + size + MARGIN.bottom;
   const tooltip = usePlotTooltip<HoveredNode>();
   const raster = m > RASTER_ABOVE;

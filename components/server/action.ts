@@ -1,8 +1,19 @@
+import { headers } from "next/headers";
 import { ZodError } from "zod";
 import { assertCan, sessionActor, type Actor, type Permission } from "@/lib/access/actor";
+import { requestAddress } from "@/lib/auth/address";
 import { requireUser } from "@/lib/auth/session";
 import { DomainError } from "@/lib/errors";
 import type { ActionFailure } from "@/components/forms/action-result";
+
+/** The address of the request being served, or null when the code runs outside one (a test calling an action). */
+export async function currentRequestAddress(): Promise<string | null> {
+  try {
+    return requestAddress(await headers());
+  } catch {
+    return null;
+  }
+}
 
 /**
  * The actor behind a server action. A server action is a public POST endpoint: every action calls this first, with
@@ -10,7 +21,7 @@ import type { ActionFailure } from "@/components/forms/action-result";
  * @throws {UnauthenticatedError} when nobody is signed in; {ForbiddenError} without the permission
  */
 export async function actionActor(permission: Permission, modelSlug?: string): Promise<Actor> {
-  const actor = sessionActor(await requireUser());
+  const actor = sessionActor(await requireUser(), await currentRequestAddress());
   assertCan(actor, permission, modelSlug);
   return actor;
 }

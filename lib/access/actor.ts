@@ -19,6 +19,8 @@ export interface Actor {
   /** Model slugs the token is limited to; null for every model. */
   models: readonly string[] | null;
   tokenId: number | null;
+  /** Where the request came from (lib/auth/address.ts), written into the audit events it causes; absent outside a request. */
+  clientAddress?: string | null;
 }
 
 /** The things the data-access layer asks permission for. */
@@ -80,6 +82,6 @@ export function seesModel(actor: Actor, modelSlug: string): boolean {
 }
 
 /** A session actor for a signed-in person (also used by seeds and tests acting as a person). */
-export function sessionActor(user: { id: number; email: string; roles: readonly Role[] }): Actor {
-  return { userId: user.id, email: user.email, roles: user.roles, via: "session", scopes: null, models: null, tokenId: null };
+export function sessionActor(user: { id: number; email: string; roles: readonly Role[] }, clientAddress: string | null = null): Actor {
+  return { userId: user.id, email: user.email, roles: user.roles, via: "session", scopes: null, models: null, tokenId: null, clientAddress };
 }

@@ -7,6 +7,7 @@ import { setupSchema } from "../validation/setup";
 import { versionTrainingSchema } from "../validation/training";
 import { evaluateBodySchema } from "../validation/evaluate";
 import { exactBodySchema } from "../validation/exact";
+import { correctionBodySchema, modesBodySchema, noiseBodySchema, pruneBodySchema, requirementsBodySchema, worstCaseBodySchema } from "../validation/analysis";
 import { meSchema } from "../validation/user";
 import { zernikeSetSchema } from "../validation/zernike";
 
@@ -157,6 +158,69 @@ const OPERATIONS: Operation[] = [
     body: { content: json(ref("ExactRequest")) },
     ok: { status: "200", description: "Exact, surrogate and difference maps (pm/nrad, [iy][ix]; null at far-field nulls), the validity block and the notice", content: json(ref("ExactAnswer")) },
     problems: ["400", "401", "403", "404", "410", "413", "422", "429", "503"],
+  },
+  // ---- analysis of a version (API.md "Analysis"), and pruning ----
+  {
+    method: "post", path: "/api/v1/models/{slug}/versions/{version}/worst-case", id: "worstCase",
+    summary: "Simple bound and exact worst case of the quadratic model on a WFE ball, per node and axis, with the maximising wavefront",
+    who: "read, or any signed-in person (drafts and versions in review: signed-in modellers and reviewers)", body: { schema: worstCaseBodySchema },
+    ok: { status: "200", description: "Bound and exact maps (pm/nrad, [iy][ix]), the worst node and its wavefront, the notice", content: json(ref("WorstCaseAnswer")) },
+    problems: ["400", "401", "403", "404", "413", "422", "429", "503"],
+  },
+  {
+    method: "post", path: "/api/v1/models/{slug}/versions/{version}/requirements", id: "requirements",
+    summary: "Limits on each linear (nm) and cross (nm^2) contribution that guarantee a TTL budget on the whole map, verified by a Monte Carlo run",
+    who: "read, or any signed-in person (the same versions as worst-case)", body: { schema: requirementsBodySchema },
+    ok: { status: "202", description: "The queued run (kind monte-carlo); its result holds the limits and what the Monte Carlo found", content: json({ type: "object", required: ["run"], properties: { run: ref("Run") } }) },
+    problems: ["400", "401", "403", "404", "413", "422", "503"],
+  },
+  {
+    method: "post", path: "/api/v1/models/{slug}/versions/{version}/modes", id: "couplingModes",
+    summary: "Coupling modes: SVD of the linear maps, unit-norm term combinations strongest first; with a wavefront, its linear TTL split by mode",
+    who: "read, or any signed-in person (the same versions as worst-case)", body: { schema: modesBodySchema },
+    ok: { status: "200", description: "Modes with singular values (pm/nrad per nm), weights and TTL maps of 1 nm of each, the notice", content: json(ref("ModesAnswer")) },
+    problems: ["400", "401", "403", "404", "413", "422", "429", "503"],
+  },
+  {
+    method: "post", path: "/api/v1/models/{slug}/versions/{version}/correction", id: "correction",
+    summary: "Adjustment of chosen terms (each within +-limitNm) that minimises the worst TTL over the map on the model; never worse than none",
+    who: "read, or any signed-in person (the same versions as worst-case)", body: { schema: correctionBodySchema },
+    ok: { status: "200", description: "The adjustment, the corrected wavefront, maps and peaks before and after, the notice", content: json(ref("CorrectionAnswer")) },
+    problems: ["400", "401", "403", "404", "413", "422", "429", "503"],
+  },
+  {
+    method: "post", path: "/api/v1/models/{slug}/versions/{version}/noise", id: "noiseBudget",
+    summary: "TTL noise ASD sqrt(c_x^2 + c_y^2) ASD_theta(f) at a DC offset (null: the worst node) against a length-noise allocation, margin in dB",
+    who: "read, or any signed-in person (the same versions as worst-case)", body: { schema: noiseBodySchema },
+    ok: { status: "200", description: "Frequencies, TTL noise and allocation (pm/sqrt(Hz)), margin (dB), failing frequencies, the notice", content: json(ref("NoiseAnswer")) },
+    problems: ["400", "401", "403", "404", "413", "422", "429", "503"],
+  },
+  {
+    method: "post", path: "/api/v1/wavefronts/fit", id: "fitWavefront",
+    summary: "Least-squares Zernike fit of a measured height map over the aperture (NaN pixels have no data)", who: "read, or any signed-in person",
+    body: {
+      content: {
+        "multipart/form-data": {
+          schema: {
+            type: "object", required: ["file", "pixelSizeM", "apertureDiameterM", "units", "zernike"],
+            properties: {
+              file: { type: "string", contentMediaType: "application/octet-stream", description: ".npy 2-D float array or CSV grid (one map row per line)" },
+              pixelSizeM: { type: "number" }, apertureDiameterM: { type: "number" }, units: { enum: ["nm", "m"] },
+              zernike: { type: "string", description: "JSON Zernike set, e.g. {\"ordering\":\"noll\",\"indices\":[4,5,6]}" },
+            },
+          },
+        },
+      },
+    },
+    ok: { status: "200", description: "The fitted wavefront, piston and tilt removed, residual RMS and pixels used", content: json(ref("FitAnswer")) },
+    problems: ["400", "401", "403", "413", "422", "429", "503"],
+  },
+  {
+    method: "post", path: "/api/v1/models/{slug}/versions/{version}/prune", id: "pruneVersion",
+    summary: "Prune a version on the queue: a derived draft keeping the terms whose noise bound reaches the threshold, with its own validation statistics",
+    who: "modeller / train", body: { schema: pruneBodySchema },
+    ok: { status: "202", description: "The queued run (kind pruning); it creates the draft, its parent recorded, the bound and the seen error in its pruning report", content: json({ type: "object", required: ["run"], properties: { run: ref("Run") } }) },
+    problems: ["400", "401", "403", "404", "413", "422", "503"],
   },
   {
     method: "post", path: "/api/v1/models/{slug}/versions/{version}/review", id: "reviewVersion", summary: "Approve a version in review (-> released) or return it to draft with a comment",
@@ -311,6 +375,72 @@ function COMPONENT_SCHEMAS(): Record<string, unknown> {
         validity: { type: "object", properties: { inRange: { type: "boolean" }, warnings: { type: "array", items: { type: "string" } } } },
         notice: { type: "string", const: SURROGATE_NOTICE },
       },
+    },
+    WorstCaseAnswer: {
+      type: "object",
+      required: ["model", "version", "state", "coefficientsSha256", "thetaNrad", "boundPmPerNrad", "exactPmPerNrad", "worst", "notice"],
+      properties: {
+        model: { type: "string" }, version: { type: "integer" }, state: { enum: [...VERSION_STATES] }, coefficientsSha256: { type: "string" },
+        thetaNrad: { type: "array", items: { type: "number" } },
+        boundPmPerNrad: { type: "object", properties: { x: { type: "array", items: { type: "array", items: { type: "number" } } }, y: { type: "array", items: { type: "array", items: { type: "number" } } } }, description: "|c0| + ||A|| r + |lambda|_max(B) r^2" },
+        exactPmPerNrad: { type: "object", properties: { x: { type: "array", items: { type: "array", items: { type: "number" } } }, y: { type: "array", items: { type: "array", items: { type: "number" } } } }, description: "max |c(a)| over ||a|| <= r (trust-region subproblem)" },
+        worst: {
+          type: "object",
+          required: ["valuePmPerNrad", "lengthNoisePm", "thetaXNrad", "thetaYNrad", "axis", "wavefront"],
+          properties: {
+            valuePmPerNrad: { type: "number" }, lengthNoisePm: { type: ["number", "null"] }, thetaXNrad: { type: "number" }, thetaYNrad: { type: "number" },
+            axis: { enum: ["x", "y"] }, solution: { enum: ["interior", "boundary", "hard"] }, wavefront: ref("Wavefront"),
+          },
+        },
+        validity: { type: "object" },
+        notice: { type: "string", const: SURROGATE_NOTICE },
+      },
+    },
+    Wavefront: { type: "object", required: ["ordering", "coefficientsNm"], properties: { ordering: { enum: ["noll", "ansi"] }, coefficientsNm: { type: "object", additionalProperties: { type: "number" } } } },
+    ModesAnswer: {
+      type: "object",
+      required: ["model", "version", "coefficientsSha256", "modes", "notice"],
+      properties: {
+        model: { type: "string" }, version: { type: "integer" }, coefficientsSha256: { type: "string" },
+        modes: {
+          type: "array",
+          items: {
+            type: "object", required: ["singularValue", "coefficientsNm"],
+            properties: {
+              singularValue: { type: "number" }, coefficientsNm: { type: "object", additionalProperties: { type: "number" } },
+              ttlPmPerNrad: { type: "object", properties: { x: { type: "array", items: { type: "array", items: { type: "number" } } }, y: { type: "array", items: { type: "array", items: { type: "number" } } } } },
+              projection: { type: "object", properties: { amplitudeNm: { type: "number" }, energyFraction: { type: "number" }, peakPmPerNrad: { type: "number" } } },
+            },
+          },
+        },
+        notice: { type: "string", const: SURROGATE_NOTICE },
+      },
+    },
+    CorrectionAnswer: {
+      type: "object",
+      required: ["model", "version", "coefficientsSha256", "adjustmentNm", "corrected", "before", "after", "notice"],
+      properties: {
+        model: { type: "string" }, version: { type: "integer" }, coefficientsSha256: { type: "string" },
+        adjustmentNm: { type: "object", additionalProperties: { type: "number" } }, corrected: ref("Wavefront"),
+        before: { type: "object", properties: { peakAbsTtlPmPerNrad: { type: "number" } } }, after: { type: "object", properties: { peakAbsTtlPmPerNrad: { type: "number" } } },
+        notice: { type: "string", const: SURROGATE_NOTICE },
+      },
+    },
+    NoiseAnswer: {
+      type: "object",
+      required: ["model", "version", "coefficientsSha256", "frequencyHz", "ttlNoisePmPerRtHz", "allocationPmPerRtHz", "marginDb", "notice"],
+      properties: {
+        model: { type: "string" }, version: { type: "integer" }, coefficientsSha256: { type: "string" },
+        offsetNrad: { type: "array", items: { type: "number" } },
+        frequencyHz: { type: "array", items: { type: "number" } }, ttlNoisePmPerRtHz: { type: "array", items: { type: "number" } },
+        allocationPmPerRtHz: { type: "array", items: { type: "number" } }, marginDb: { type: "array", items: { type: ["number", "null"] } },
+        failingHz: { type: "array", items: { type: "number" } },
+        notice: { type: "string", const: SURROGATE_NOTICE },
+      },
+    },
+    FitAnswer: {
+      type: "object", required: ["wavefront", "residualRmsNm", "samplesInAperture"],
+      properties: { wavefront: ref("Wavefront"), residualRmsNm: { type: "number" }, samplesInAperture: { type: "integer" }, removedNm: { type: "object" }, mapRmsNm: { type: "number" } },
     },
     SetupItem: {
       type: "object",

@@ -7,7 +7,8 @@ import { signInSchema } from "../validation/auth";
 import { verifyPassword } from "./password";
 import { isRole } from "../access/roles";
 import { SIGN_IN_RATE_LIMITED } from "./messages";
-import { clearSignInFailures, recordFailedSignIn, requestAddress, signInBlockedFor } from "./signInLimit";
+import { requestAddress } from "./address";
+import { clearSignInFailures, recordFailedSignIn, signInBlockedFor } from "./signInLimit";
 
 type AuthorizeRequest = { headers?: Record<string, string | string[] | undefined> } | undefined;
 
@@ -19,7 +20,7 @@ async function authorize(raw: Record<string, unknown> | undefined, request: Auth
   const address = requestAddress(request?.headers);
   const waitSeconds = await signInBlockedFor(account, address);
   if (waitSeconds > 0) {
-    await recordAuditEvent({ actorUserId: null, action: "sign-in.rate-limited", detail: { email: account, address, waitSeconds } });
+    await recordAuditEvent({ actorUserId: null, clientAddress: address, action: "sign-in.rate-limited", detail: { email: account, address, waitSeconds } });
     // next-auth puts the message in the URL as the error code; the sign-in page words it (lib/auth/messages.ts).
     throw new Error(SIGN_IN_RATE_LIMITED);
   }
@@ -29,6 +30,7 @@ async function authorize(raw: Record<string, unknown> | undefined, request: Auth
     await recordFailedSignIn(account, address);
     await recordAuditEvent({
       actorUserId: credentials?.id ?? null,
+      clientAddress: address,
       action: "sign-in.refused",
       detail: { email: account, address, ...(credentials?.disabled && valid ? { reason: "disabled" } : {}) },
     });
@@ -37,7 +39,7 @@ async function authorize(raw: Record<string, unknown> | undefined, request: Auth
   const user = await getUser(credentials.id);
   if (!user) return null;
   await clearSignInFailures(account);
-  await recordAuditEvent({ actorUserId: user.id, action: "sign-in", subjectType: "user", subjectId: user.id, detail: { address } });
+  await recordAuditEvent({ actorUserId: user.id, clientAddress: address, action: "sign-in", subjectType: "user", subjectId: user.id, detail: { address } });
   return { id: String(user.id), email: user.email, name: user.name, roles: user.roles, sessionEpoch: credentials.sessionEpoch };
 }
 

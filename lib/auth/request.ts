@@ -1,6 +1,7 @@
 import { sessionActor, type Actor } from "../access/actor.ts";
 import { authenticateToken } from "../db/tokens.ts";
 import { UnauthenticatedError } from "../errors.ts";
+import { requestAddress } from "./address.ts";
 import { getSessionUser } from "./session.ts";
 
 const REFUSALS = {
@@ -24,9 +25,9 @@ export async function requireActor(request: Request): Promise<Actor> {
     if (!match) throw new UnauthenticatedError(REFUSALS.malformed);
     const result = await authenticateToken(match[1]);
     if (typeof result === "string") throw new UnauthenticatedError(REFUSALS[result]);
-    return result;
+    return { ...result, clientAddress: requestAddress(request.headers) };
   }
   const user = await getSessionUser();
   if (!user) throw new UnauthenticatedError("Sign in, or send 'Authorization: Bearer <token>'.");
-  return sessionActor(user);
+  return sessionActor(user, requestAddress(request.headers));
 }

@@ -63,15 +63,3 @@ export async function recordFailedSignIn(account: string, address: string): Prom
 export async function clearSignInFailures(account: string): Promise<void> {
   await limiters().account.delete(account);
 }
-
-/**
- * The address a request came from: the last entry of X-Forwarded-For, which the fronting proxy appends, or which
- * Next sets from the socket when the request carries none. (A client that reaches the server directly and sends its
- * own header chooses its address; the per-account limit holds all the same.)
- */
-export function requestAddress(headers: Record<string, string | string[] | undefined> | Headers | undefined): string {
-  const raw = headers instanceof Headers ? headers.get("x-forwarded-for") : headers?.["x-forwarded-for"];
-  const value = Array.isArray(raw) ? raw.join(",") : (raw ?? "");
-  const last = value.split(",").map((part) => part.trim()).filter(Boolean).at(-1);
-  return last ?? "unknown";
-}

@@ -7,7 +7,7 @@ import { packFloat64, unpackFloat64 } from "../formats/packed.ts";
 import { thetaGridNrad } from "../optics/setup.ts";
 import { sha256Hex } from "../surrogate/checksum.ts";
 import type { SampleSet } from "../surrogate/designs.ts";
-import { recordAuditEvent } from "./audit.ts";
+import { auditedBy, recordAuditEvent } from "./audit.ts";
 import { db } from "./knex.ts";
 import { requireModel, type ModelRecord } from "./models.ts";
 import { toIso } from "./rows.ts";
@@ -76,7 +76,7 @@ export async function createGeneratingSet(
       data_sha256: sha256Hex(data),
       created_by: actor.userId,
     });
-    await recordAuditEvent({ actorUserId: actor.userId, action: "generating-set.upload", subjectType: "generating_set", subjectId: id, detail: { model: slug, samples: set.count, sha256 } }, trx);
+    await recordAuditEvent({ ...auditedBy(actor), action: "generating-set.upload", subjectType: "generating_set", subjectId: id, detail: { model: slug, samples: set.count, sha256 } }, trx);
     return Number(id);
   });
   const row = await conn("generating_sets").select("id", "model_id", "samples", "sha256", "file_name", "file_size_bytes", "created_at").where({ id }).first();

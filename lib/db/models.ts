@@ -4,7 +4,7 @@ import { ConflictError, NotFoundError } from "../errors.ts";
 import { toNollIndices } from "../optics/zernike.ts";
 import type { OpticalSetup, ZernikeSet } from "../optics/types.ts";
 import type { CreateModelInput, VersionState } from "../validation/registry.ts";
-import { recordAuditEvent } from "./audit.ts";
+import { auditedBy, recordAuditEvent } from "./audit.ts";
 import { db } from "./knex.ts";
 import { fromJson, pageOf, toIso, type Page, type PageRequest } from "./rows.ts";
 import { loadSetup, type SetupItem } from "./setups.ts";
@@ -155,7 +155,7 @@ export async function createModel(actor: Actor, input: CreateModelInput, conn: K
       zernike_indices: JSON.stringify(input.zernike.indices),
       created_by: actor.userId,
     });
-    await recordAuditEvent({ actorUserId: actor.userId, action: "model.create", subjectType: "model", subjectId: id, detail: { slug: input.slug } }, trx);
+    await recordAuditEvent({ ...auditedBy(actor), action: "model.create", subjectType: "model", subjectId: id, detail: { slug: input.slug } }, trx);
   });
   return getModel({ ...actor, models: null }, input.slug, conn);
 }

@@ -5,7 +5,7 @@ import { dispatchMail, recordMail } from "../mail/index.ts";
 import { versionDecidedMail } from "../mail/review.ts";
 import type { ResidualStatistics } from "../surrogate/statistics.ts";
 import type { ValidityRange } from "../surrogate/validity.ts";
-import { recordAuditEvent } from "./audit.ts";
+import { auditedBy, recordAuditEvent } from "./audit.ts";
 import { db } from "./knex.ts";
 import { requireModel } from "./models.ts";
 import { fromJson, toIso } from "./rows.ts";
@@ -46,7 +46,7 @@ export async function reviewVersion(
     await trx("reviews").insert({ version_id: row.id, reviewer_id: actor.userId, decision: input.decision, comment });
     await changeVersionState(trx, row.id, input.decision === "approve" ? "released" : "draft", actor.userId, comment);
     await recordAuditEvent(
-      { actorUserId: actor.userId, action: `version.${input.decision}`, subjectType: "model_version", subjectId: row.id, detail: { model: slug, version, comment } },
+      { ...auditedBy(actor), action: `version.${input.decision}`, subjectType: "model_version", subjectId: row.id, detail: { model: slug, version, comment } },
       trx,
     );
     if (row.created_by === null) return [];

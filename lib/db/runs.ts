@@ -2,7 +2,7 @@ import type { Knex } from "knex";
 import { assertCan, can, type Actor } from "../access/actor.ts";
 import { ConflictError, ForbiddenError, NotFoundError } from "../errors.ts";
 import type { RunKind, RunState } from "../validation/registry.ts";
-import { recordAuditEvent } from "./audit.ts";
+import { auditedBy, recordAuditEvent } from "./audit.ts";
 import { db } from "./knex.ts";
 import { fromJson, pageOf, toIso, type Page, type PageRequest } from "./rows.ts";
 
@@ -50,6 +50,9 @@ export interface RunItem {
   startedAt: string | null;
   finishedAt: string | null;
 }
+
+/** What a stored chunk holds: exact maps of a training or validation set, or what a Monte Carlo share found. */
+export type ChunkSet = "generating" | "validation" | "monte-carlo";
 
 export interface RunLogLine {
   at: string;
@@ -188,7 +191,7 @@ export async function cancelRun(actor: Actor, id: number, conn: Knex = db()): Pr
     await trx("runs").where({ id }).update({ state: "cancelled", finished_at: trx.fn.now(3) });
     await trx("run_log").insert({ run_id: id, level: "warning", message: `cancelled by ${actor.email}` });
     await trx("run_chunks").where({ run_id: id }).delete();
-    await recordAuditEvent({ actorUserId: actor.userId, action: "run.cancel", subjectType: "run", subjectId: id }, trx);
+    await recordAuditEvent({ ...auditedBy(actor), action: "run.cancel", subjectType: "run", subjectId: id }, trx);
   });
   return runItem(id, conn);
 }
@@ -231,7 +234,7 @@ export async function markRunStarted(runId: number, worker: string, conn: Knex =
  */
 export async function storeRunChunk(
   runId: number,
-  chunk: { sampleSet: "generating" | "validation"; index: number; first: number; count: number; maps: Uint8Array },
+  chunk: { sampleSet: ChunkSet; index: number; first: number; count: number; maps: Uint8Array },
   worker: string,
   conn: Knex = db(),
 ): Promise<{ stored: boolean; done: number; total: number }> {
@@ -252,8 +255,8 @@ export async function storeRunChunk(
 export async function loadRunChunks(
   runId: number,
   conn: Knex = db(),
-): Promise<{ sampleSet: "generating" | "validation"; index: number; first: number; count: number; maps: Uint8Array }[]> {
-  const rows: { sample_set: "generating" | "validation"; chunk_index: number; first_sample: number; sample_count: number; maps: Buffer }[] = await conn("run_chunks")
+): Promise<{ sampleSet: ChunkSet; index: number; first: number; count: number; maps: Uint8Array }[]> {
+  const rows: { sample_set: ChunkSet; chunk_index: number; first_sample: number; sample_count: number; maps: Buffer }[] = await conn("run_chunks")
     .where({ run_id: runId })
     .orderBy(["sample_set", "chunk_index"]);
   return rows.map((r) => ({

@@ -4,7 +4,7 @@ import { ConflictError, NotFoundError } from "../errors.ts";
 import { derivedQuantities } from "../optics/derived.ts";
 import type { OpticalSetup } from "../optics/types.ts";
 import type { CreateSetupInput } from "../validation/registry.ts";
-import { recordAuditEvent } from "./audit.ts";
+import { auditedBy, recordAuditEvent } from "./audit.ts";
 import { db } from "./knex.ts";
 import { pageOf, toIso, type Page, type PageRequest } from "./rows.ts";
 
@@ -95,7 +95,7 @@ export async function createSetup(actor: Actor, input: CreateSetupInput, conn: K
       pupil_samples: setup.pupilSamples,
       created_by: actor.userId,
     });
-    await recordAuditEvent({ actorUserId: actor.userId, action: "setup.create", subjectType: "setup", subjectId: id, detail: { name: input.name } }, trx);
+    await recordAuditEvent({ ...auditedBy(actor), action: "setup.create", subjectType: "setup", subjectId: id, detail: { name: input.name } }, trx);
     return toItem((await trx("setups").where({ id }).first()) as SetupRow);
   });
 }

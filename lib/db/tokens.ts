@@ -4,7 +4,7 @@ import { assertCan, can, TOKEN_SCOPES, type Actor, type TokenScope } from "../ac
 import { isRole, type Role } from "../access/roles.ts";
 import { NotFoundError, UnprocessableError } from "../errors.ts";
 import type { CreateTokenInput } from "../validation/registry.ts";
-import { recordAuditEvent } from "./audit.ts";
+import { auditedBy, recordAuditEvent } from "./audit.ts";
 import { db } from "./knex.ts";
 import { fromJson, toIso } from "./rows.ts";
 
@@ -87,17 +87,34 @@ export async function createToken(actor: Actor, input: CreateTokenInput, conn: K
     models: input.models === null ? null : JSON.stringify([...new Set(input.models)]),
     expires_at: input.expiresAt === null ? null : new Date(input.expiresAt),
   });
-  await recordAuditEvent({ actorUserId: actor.userId, action: "token.create", subjectType: "api_token", subjectId: id, detail: { name: input.name, scopes: input.scopes } }, conn);
+  await recordAuditEvent({ ...auditedBy(actor), action: "token.create", subjectType: "api_token", subjectId: id, detail: { name: input.name, scopes: input.scopes } }, conn);
   const row: TokenRow = await conn("api_tokens").where({ id }).first();
   return { ...toItem(row, actor.email), token: secret };
 }
 
-/** The actor's own tokens, or with `all` (admins only) everybody's. */
-export async function listTokens(actor: Actor, options: { all?: boolean } = {}, conn: Knex = db()): Promise<TokenItem[]> {
+export const TOKEN_STATES = ["active", "revoked", "expired"] as const;
+export type TokenState = (typeof TOKEN_STATES)[number];
+
+/** Narrowing a token list: by owner's e-mail, state at `now`, and a scope the token holds. */
+export interface TokenFilter {
+  owner?: string;
+  state?: TokenState;
+  scope?: TokenScope;
+  now?: Date;
+}
+
+/** The actor's own tokens, or with `all` (admins only) everybody's, optionally filtered. */
+export async function listTokens(actor: Actor, options: { all?: boolean } & TokenFilter = {}, conn: Knex = db()): Promise<TokenItem[]> {
   assertCan(actor, "tokens");
   if (options.all) assertCan(actor, "admin");
   const query = conn("api_tokens").join("users", "users.id", "api_tokens.user_id").select("api_tokens.*", "users.email as owner_email").orderBy("api_tokens.id");
   if (!options.all) query.where("api_tokens.user_id", actor.userId);
+  if (options.owner) query.where("users.email", options.owner.trim().toLowerCase());
+  const now = options.now ?? new Date();
+  if (options.state === "revoked") query.whereNotNull("api_tokens.revoked_at");
+  if (options.state === "expired") query.whereNull("api_tokens.revoked_at").where("api_tokens.expires_at", "<=", now);
+  if (options.state === "active") query.whereNull("api_tokens.revoked_at").where((w) => w.whereNull("api_tokens.expires_at").orWhere("api_tokens.expires_at", ">", now));
+  if (options.scope) query.whereRaw("JSON_CONTAINS(api_tokens.scopes, JSON_QUOTE(?))", [options.scope]);
   const rows: (TokenRow & { owner_email: string })[] = await query;
   return rows.map((row) => toItem(row, row.owner_email));
 }
@@ -109,7 +126,7 @@ export async function revokeToken(actor: Actor, id: number, conn: Knex = db()): 
   if (!row || (row.user_id !== actor.userId && !can(actor, "admin"))) throw new NotFoundError(`There is no token ${id}.`);
   if (row.revoked_at === null) await conn("api_tokens").where({ id }).update({ revoked_at: conn.fn.now(3) });
   forgetCachedTokens({ tokenId: id });
-  await recordAuditEvent({ actorUserId: actor.userId, action: "token.revoke", subjectType: "api_token", subjectId: id }, conn);
+  await recordAuditEvent({ ...auditedBy(actor), action: "token.revoke", subjectType: "api_token", subjectId: id }, conn);
 }
 
 /** Why a presented token is refused (the message the 401 carries). */
@@ -250,4 +267,55 @@ export async function flushTokenUsage(conn: Knex = db()): Promise<void> {
       [e.tokenId, e.versionId, e.day, e.requests, e.wavefronts, e.lastUsedAt],
     );
   }
+}
+
+// ---- who evaluated a version lately (the audience of a retirement notice) ----
+
+/** How far back an evaluation makes a token's owner someone to tell when the version is retired. */
+export const NOTICE_WINDOW_DAYS = 90;
+
+/** The first UTC day inside the notice window ending at `now` (token_version_usage counts by UTC day). */
+export function noticeWindowStart(now: Date): string {
+  return new Date(now.getTime() - (NOTICE_WINDOW_DAYS - 1) * 86_400_000).toISOString().slice(0, 10);
+}
+
+export interface RecentVersionUser {
+  userId: number;
+  email: string;
+  name: string;
+  /** That person's tokens which evaluated the version in the window, by name. */
+  tokens: string[];
+}
+
+/**
+ * Every owner of a token that evaluated the version within the last NOTICE_WINDOW_DAYS days (counted per UTC day,
+ * today included), with those tokens. Disabled or role-less owners are included: a notice costs nothing, and
+ * their scripts may come back under another account.
+ */
+export async function recentVersionUsers(versionId: number, now = new Date(), conn: Knex = db()): Promise<RecentVersionUser[]> {
+  const rows: { user_id: number; email: string; name: string; token_name: string }[] = await conn("token_version_usage")
+    .join("api_tokens", "api_tokens.id", "token_version_usage.token_id")
+    .join("users", "users.id", "api_tokens.user_id")
+    .where("token_version_usage.version_id", versionId)
+    .where("token_version_usage.day", ">=", noticeWindowStart(now))
+    .distinct("users.id as user_id", "users.email", "users.name", "api_tokens.name as token_name")
+    .orderBy(["users.email", "api_tokens.name"]);
+  const byUser = new Map<number, RecentVersionUser>();
+  for (const row of rows) {
+    const entry = byUser.get(row.user_id) ?? { userId: row.user_id, email: row.email, name: row.name, tokens: [] };
+    if (!entry.tokens.includes(row.token_name)) entry.tokens.push(row.token_name);
+    byUser.set(row.user_id, entry);
+  }
+  return [...byUser.values()];
+}
+
+/** Per version id: how many tokens, of how many people, evaluated it within the notice window. */
+export async function recentUsageByVersion(now = new Date(), conn: Knex = db()): Promise<Map<number, { tokens: number; people: number }>> {
+  const rows: { version_id: number; tokens: number | string; people: number | string }[] = await conn("token_version_usage")
+    .join("api_tokens", "api_tokens.id", "token_version_usage.token_id")
+    .where("token_version_usage.day", ">=", noticeWindowStart(now))
+    .groupBy("token_version_usage.version_id")
+    .select("token_version_usage.version_id")
+    .countDistinct({ tokens: "token_version_usage.token_id", people: "api_tokens.user_id" });
+  return new Map(rows.map((r) => [r.version_id, { tokens: Number(r.tokens), people: Number(r.people) }]));
 }

@@ -3,7 +3,7 @@ import { db } from "./knex";
 import { isRole, ROLES, type Role } from "../access/roles";
 import { assertCan, type Actor } from "../access/actor";
 import { ConflictError, NotFoundError } from "../errors";
-import { recordAuditEvent } from "./audit";
+import { auditedBy, recordAuditEvent } from "./audit";
 import { forgetCachedTokens } from "./tokens";
 
 interface UserRow {
@@ -212,7 +212,7 @@ export async function disableUser(actor: Actor, userId: number, conn: Knex = db(
     const target = await getUser(userId, trx);
     if (!target) throw new NotFoundError(`There is no person ${userId}.`);
     if (await setUserDisabled(userId, true, trx)) {
-      await recordAuditEvent({ actorUserId: actor.userId, action: "user.disable", subjectType: "user", subjectId: userId, detail: { email: target.email } }, trx);
+      await recordAuditEvent({ ...auditedBy(actor), action: "user.disable", subjectType: "user", subjectId: userId, detail: { email: target.email } }, trx);
     }
     return (await getUser(userId, trx))!;
   });
@@ -228,7 +228,7 @@ export async function enableUser(actor: Actor, userId: number, conn: Knex = db()
     const target = await getUser(userId, trx);
     if (!target) throw new NotFoundError(`There is no person ${userId}.`);
     if (await setUserDisabled(userId, false, trx)) {
-      await recordAuditEvent({ actorUserId: actor.userId, action: "user.enable", subjectType: "user", subjectId: userId, detail: { email: target.email } }, trx);
+      await recordAuditEvent({ ...auditedBy(actor), action: "user.enable", subjectType: "user", subjectId: userId, detail: { email: target.email } }, trx);
     }
     return (await getUser(userId, trx))!;
   });

@@ -11,7 +11,7 @@ import type { ValidityRange } from "../surrogate/validity.ts";
 import type { VersionState } from "../validation/registry.ts";
 import { dispatchMail, recordMail } from "../mail/index.ts";
 import { versionSubmittedMail } from "../mail/review.ts";
-import { recordAuditEvent } from "./audit.ts";
+import { auditedBy, recordAuditEvent } from "./audit.ts";
 import { db } from "./knex.ts";
 import { loadModel, requireModel, type ModelRecord } from "./models.ts";
 import { fromJson, toIso } from "./rows.ts";
@@ -254,7 +254,7 @@ export async function submitVersion(actor: Actor, slug: string, version: number,
     if (row.created_by !== actor.userId) throw new ForbiddenError("Only the modeller who made this version may submit it for review.");
     if (row.state !== "draft") throw new ConflictError(`Version ${version} is ${row.state}; only a draft can be submitted for review.`);
     await changeVersionState(trx, row.id, "in-review", actor.userId, null);
-    await recordAuditEvent({ actorUserId: actor.userId, action: "version.submit", subjectType: "model_version", subjectId: row.id, detail: { model: slug, version } }, trx);
+    await recordAuditEvent({ ...auditedBy(actor), action: "version.submit", subjectType: "model_version", subjectId: row.id, detail: { model: slug, version } }, trx);
     // Every reviewer but the author hears of it; the mail rows commit with the submission.
     const reviewers = (await usersWithRole("reviewer", trx)).filter((r) => r.id !== actor.userId);
     if (reviewers.length === 0) return [];
@@ -355,7 +355,7 @@ export async function uploadVersion(actor: Actor, slug: string, file: Uint8Array
 
 /**
  * Retire a released version (admins): it stays readable and, until its sunset, evaluable with deprecation headers.
- * The state change and its audit event are one transaction.
+ * The state change and its audit event are one transaction (with whatever `onRetired` writes, such as the notices).
  * @throws {ConflictError} unless the version is released; {UnprocessableError} for a sunset in the past or an unusable successor
  */
 export async function retireVersion(
@@ -365,6 +365,8 @@ export async function retireVersion(
   input: { reason: string; sunsetAt: string; successorVersion: number | null },
   now = new Date(),
   conn: Knex = db(),
+  /** Runs inside the retirement's transaction once the state change and its audit event are written. */
+  onRetired?: (trx: Knex.Transaction, versionId: number) => Promise<void>,
 ): Promise<VersionDetail> {
   assertCan(actor, "admin", slug);
   const model = await requireModel(actor, slug, conn);
@@ -388,9 +390,10 @@ export async function retireVersion(
       successor_version_id: successorId,
     });
     await recordAuditEvent(
-      { actorUserId: actor.userId, action: "version.retire", subjectType: "model_version", subjectId: row.id, detail: { model: slug, version, ...input } },
+      { ...auditedBy(actor), action: "version.retire", subjectType: "model_version", subjectId: row.id, detail: { model: slug, version, ...input } },
       trx,
     );
+    await onRetired?.(trx, row.id);
   });
   return getVersion(actor, slug, version, conn);
 }
@@ -482,4 +485,53 @@ export async function releasedEvaluationTargets(conn: Knex = db()): Promise<Eval
     if (target) out.push(target);
   }
   return out;
+}
+
+/** A version as the admins' overview of every model lists it. */
+export interface VersionOverview {
+  versionId: number;
+  model: string;
+  modelName: string;
+  version: number;
+  state: VersionState;
+  order: number;
+  termCount: number;
+  createdAt: string;
+  createdBy: string | null;
+  retirement: Retirement | null;
+}
+
+/** Every version of every model, by model and number, optionally of one state (admins). */
+export async function listAllVersions(actor: Actor, options: { state?: VersionState; model?: string } = {}, conn: Knex = db()): Promise<VersionOverview[]> {
+  assertCan(actor, "admin");
+  const query = conn("model_versions")
+    .join("models", "models.id", "model_versions.model_id")
+    .leftJoin("users", "users.id", "model_versions.created_by")
+    .leftJoin("model_versions as successor", "successor.id", "model_versions.successor_version_id")
+    .select(
+      "model_versions.*",
+      "models.slug as model_slug",
+      "models.name as model_name",
+      "users.email as creator_email",
+      "successor.version as successor_number",
+    )
+    .orderBy([{ column: "models.slug" }, { column: "model_versions.version" }]);
+  if (options.state) query.where("model_versions.state", options.state);
+  if (options.model) query.where("models.slug", options.model);
+  const rows: (VersionRow & { model_slug: string; model_name: string; creator_email: string | null; successor_number: number | null })[] = await query;
+  return rows.map((row) => ({
+    versionId: row.id,
+    model: row.model_slug,
+    modelName: row.model_name,
+    version: row.version,
+    state: row.state,
+    order: row.order,
+    termCount: row.term_count,
+    createdAt: toIso(row.created_at)!,
+    createdBy: row.creator_email,
+    retirement:
+      row.state === "retired" && row.retired_at && row.sunset_at
+        ? { reason: row.retired_reason ?? "", retiredAt: toIso(row.retired_at)!, sunsetAt: toIso(row.sunset_at)!, successorVersion: row.successor_number }
+        : null,
+  }));
 }

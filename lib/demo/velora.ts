@@ -23,3 +23,6 @@ export const VELORA_ZERNIKE: ZernikeSet = {
 /** WFE budget (nm RMS over Noll 4-36) and pointing jitter (nrad). */
 export const VELORA_WFE_BUDGET_NM = 30;
 export const VELORA_JITTER_NRAD = 8;
+
+/** The demo's standard example wavefront (nm RMS by Noll index): a little defocus, coma and spherical. */
+export const VELORA_EXAMPLE_WAVEFRONT_NM: Readonly<Record<number, number>> = { 4: 6, 7: -4, 8: 2.5, 11: 3 };

@@ -7,7 +7,7 @@ import { addMailJobs } from "./queue.ts";
  * The kinds of mail the product sends. Add a kind here when a new event sends mail; the `notifications` table stores
  * it as a plain string, so a new kind needs no migration.
  */
-export const MAIL_KINDS = ["version-submitted", "version-decided"] as const;
+export const MAIL_KINDS = ["version-submitted", "version-decided", "invitation", "version-retired"] as const;
 export type MailKind = (typeof MAIL_KINDS)[number];
 
 export interface MailRecipient {

@@ -19,3 +19,5 @@ export {
   beamToApertureRatio, derivedQuantities, diffractionAngleNrad, fresnelNumber, onAxisGain, onAxisGainOptimum,
   type DerivedInput, type DerivedQuantities,
 } from "./derived.ts";
+export { fitZernike, MAX_FIT_PIXELS, type HeightMap, type HeightUnit, type ZernikeFit } from "./zernikeFit.ts";
+export { MAX_PUPIL_MAP_SAMPLES, pupilMap } from "./pupilMap.ts";

@@ -8,6 +8,7 @@ import { validateSetup } from "../optics/setup.ts";
 import type { FlatTtlMaps, OpticalSetup } from "../optics/types.ts";
 import { requireNollIndices } from "../optics/zernike.ts";
 import { checkCoefficients, checkFinite, MAP_SUMMARY_WIDTH } from "../surrogate/evaluate.ts";
+import type { AnalysisRequest, AnalysisResult } from "../surrogate/analysis.ts";
 import type { SurrogateModel } from "../surrogate/model.ts";
 import type { ComputeTask, SharedModel } from "./computeTask.ts";
 import { runTtlTask, type TtlTask, type TtlTaskResult } from "./ttlTask.ts";
@@ -45,6 +46,17 @@ export interface ComputePool {
    * @throws RangeError as `checkCoefficients`, and when the result overflows (`checkFinite`)
    */
   evaluateBatch(model: SurrogateModel, coefficientsNm: ArrayLike<number>): Promise<Float64Array>;
+  /**
+   * Peak |TTL| of each of `S` wavefronts (`evaluateBatchPeaksInto`), pm/nrad, the rows shared out over the threads.
+   * @throws RangeError as `checkCoefficients`, and when a peak overflows
+   */
+  evaluatePeaks(model: SurrogateModel, coefficientsNm: ArrayLike<number>): Promise<Float64Array>;
+  /**
+   * One analysis of lib/surrogate/analysis.ts on a worker thread (the model's coefficients shared as for
+   * `evaluateBatch`); the same result as `runAnalysis` on this thread.
+   * @throws RangeError from the analysis
+   */
+  analyse<R extends AnalysisRequest>(model: SurrogateModel | null, request: R): Promise<AnalysisResult<R>>;
   /**
    * What {@link summariseMapsInto} reports of each wavefront's maps (`S x 4`: peak, its node and axis, the largest
    * `c_x^2 + c_y^2`), made in the workers, so that the maps never reach the calling thread.
@@ -166,6 +178,25 @@ export function createComputePool(options: { threads?: number } = {}): ComputePo
   };
 
 
+  /** Rows of a batch shared out over the threads, input and `samples x width` output in shared memory. */
+  const sharedRows = async (kind: "evaluate" | "peaks", model: SurrogateModel, coefficientsNm: ArrayLike<number>, samples: number, width: number) => {
+    const shared = sharedModel(model);
+    const input = new SharedArrayBuffer(Math.max(8, coefficientsNm.length * 8));
+    new Float64Array(input, 0, coefficientsNm.length).set(coefficientsNm);
+    const output = new SharedArrayBuffer(Math.max(8, samples * width * 8));
+    const share = Math.ceil(samples / threads);
+    const jobs: Promise<unknown>[] = [];
+    for (let rowStart = 0; rowStart < samples; rowStart += share) {
+      const task: ComputeTask = {
+        kind, model: shared, input, inputLength: coefficientsNm.length, output, outputLength: samples * width,
+        rowStart, rowEnd: Math.min(samples, rowStart + share),
+      };
+      jobs.push(pool.run(task));
+    }
+    await Promise.all(jobs);
+    return new Float64Array(output, 0, samples * width);
+  };
+
   return {
     threads,
 
@@ -221,6 +252,17 @@ export function createComputePool(options: { threads?: number } = {}): ComputePo
       const out = await runEvaluation(model, coefficientsNm, false);
       checkFinite(out);
       return out;
+    },
+
+    async evaluatePeaks(model, coefficientsNm) {
+      const samples = checkCoefficients(model, coefficientsNm, true);
+      const out = await sharedRows("peaks", model, coefficientsNm, samples, 1);
+      checkFinite(out);
+      return out;
+    },
+
+    async analyse(model, request) {
+      return pool.run({ kind: "analysis", model: model ? sharedModel(model) : null, request } satisfies ComputeTask);
     },
 
     async summariseBatch(model, coefficientsNm) {

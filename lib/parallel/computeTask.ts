@@ -1,5 +1,6 @@
 import type { SurrogateModel } from "../surrogate/model.ts";
-import { evaluateBatchInto, MAP_SUMMARY_WIDTH, summariseMapsInto } from "../surrogate/evaluate.ts";
+import { runAnalysis, type AnalysisRequest } from "../surrogate/analysis.ts";
+import { evaluateBatchInto, evaluateBatchPeaksInto, MAP_SUMMARY_WIDTH, summariseMapsInto } from "../surrogate/evaluate.ts";
 import { runTtlTask, type TtlTask } from "./ttlTask.ts";
 
 /**
@@ -27,7 +28,17 @@ export interface EvaluateTask {
   rowEnd: number;
 }
 
-export type ComputeTask = ({ kind: "ttl" } & TtlTask) | ({ kind: "evaluate" } & EvaluateTask);
+/** An analysis of lib/surrogate/analysis.ts on a shared model (or none, for the fit). */
+export interface AnalysisTask {
+  model: SharedModel | null;
+  request: AnalysisRequest;
+}
+
+export type ComputeTask =
+  | ({ kind: "ttl" } & TtlTask)
+  | ({ kind: "evaluate" } & EvaluateTask)
+  | ({ kind: "peaks" } & EvaluateTask)
+  | ({ kind: "analysis" } & AnalysisTask);
 
 /** Rows evaluated together for a summary: 64 demo maps are 640 KB. */
 const SUMMARY_ROWS = 64;
@@ -52,9 +63,9 @@ function modelFor(shared: SharedModel): SurrogateModel {
 /**
  * Run one task of the compute pool on this thread. Exact TTL: returns the x maps, the y maps and then the
  * task's undefined node indices (exact small integers) in one buffer. Batched evaluation: writes its rows into
- * the shared output and returns null.
+ * the shared output and returns null; peaks likewise (one per wavefront). An analysis returns its result object.
  */
-export function runComputeTask(task: ComputeTask): Float64Array | null {
+export function runComputeTask(task: ComputeTask): Float64Array | null | unknown {
   if (task.kind === "ttl") {
     const { x, y, undefinedNodes } = runTtlTask(task);
     const all = new Float64Array(x.length + y.length + undefinedNodes.length);
@@ -63,9 +74,14 @@ export function runComputeTask(task: ComputeTask): Float64Array | null {
     all.set(undefinedNodes, x.length + y.length);
     return all;
   }
+  if (task.kind === "analysis") return runAnalysis(task.model ? modelFor(task.model) : null, task.request);
   const input = new Float64Array(task.input, 0, task.inputLength);
   const output = new Float64Array(task.output, 0, task.outputLength);
   const model = modelFor(task.model);
+  if (task.kind === "peaks") {
+    evaluateBatchPeaksInto(model, input, output, task.rowStart, task.rowEnd);
+    return null;
+  }
   if (!task.summary) {
     evaluateBatchInto(model, input, output, task.rowStart, task.rowEnd);
     return null;

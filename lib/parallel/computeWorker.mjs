@@ -6,8 +6,8 @@ import { register } from "tsx/esm/api";
 register();
 const { runComputeTask } = await import("./computeTask.ts");
 
-/** Exact TTL maps come back moved (not copied); batched evaluation writes into shared memory. */
+/** Exact TTL maps come back moved (not copied); batched evaluation writes into shared memory; analyses are cloned. */
 export default function computeWorker(task) {
   const result = runComputeTask(task);
-  return result === null ? null : move(result);
+  return result instanceof Float64Array ? move(result) : result;
 }

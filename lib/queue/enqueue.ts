@@ -1,7 +1,7 @@
 import { FlowProducer, Queue } from "bullmq";
 import { ServiceUnavailableError } from "../errors.ts";
 import { queuePrefix, redisConnection, WORK_QUEUE } from "./connection.ts";
-import { chunkJobs, type TrainingRunSpec } from "./plan.ts";
+import { chunkJobs, monteCarloJobs, type ChunkJob, type MonteCarloRunSpec, type PruningRunSpec, type TrainingRunSpec } from "./plan.ts";
 
 const holder = globalThis as typeof globalThis & { __stillpointFlow?: FlowProducer; __stillpointQueue?: Queue };
 
@@ -20,14 +20,27 @@ export function workQueue(): Queue {
 const CHUNK_ATTEMPTS = 3;
 
 /**
- * Queue a training run: one job per chunk of exact propagation, which any worker takes, and a `finish` job (the fit,
+ * Queue a training run (or a pruning run, whose chunks propagate its validation set): one job per chunk of exact propagation, which any worker takes, and a `finish` job (the fit,
  * the validation statistics and the new version) that BullMQ releases when every chunk is done. Job ids derive
  * from the run, so queuing the same run twice adds nothing.
  * @throws {ServiceUnavailableError} when Redis cannot be reached
  */
-export async function enqueueTrainingRun(runId: number, spec: TrainingRunSpec): Promise<void> {
-  const children = chunkJobs(runId, spec).map((chunk) => ({
-    name: "chunk",
+export async function enqueueTrainingRun(runId: number, spec: TrainingRunSpec | PruningRunSpec): Promise<void> {
+  await enqueueFlow(runId, "chunk", chunkJobs(runId, spec));
+}
+
+/**
+ * Queue a Monte Carlo run: one `monte-carlo-chunk` job per share of samples (seeded, so any worker draws the same
+ * ones) and the `finish` job (merge, exact propagation of the worst samples, the result).
+ * @throws {ServiceUnavailableError} when Redis cannot be reached
+ */
+export async function enqueueMonteCarloRun(runId: number, spec: MonteCarloRunSpec): Promise<void> {
+  await enqueueFlow(runId, "monte-carlo-chunk", monteCarloJobs(runId, spec));
+}
+
+async function enqueueFlow(runId: number, childName: string, chunks: ChunkJob[]): Promise<void> {
+  const children = chunks.map((chunk) => ({
+    name: childName,
     queueName: WORK_QUEUE,
     data: chunk,
     opts: {

@@ -24,7 +24,7 @@ export interface TrainingRunSpec {
 
 export interface ChunkJob {
   runId: number;
-  sampleSet: "generating" | "validation";
+  sampleSet: "generating" | "validation" | "monte-carlo";
   index: number;
   first: number;
   count: number;
@@ -42,12 +42,56 @@ export function generatingSampleCount(set: StoredGeneratingSet, termCountJ: numb
 }
 
 /** The chunks of exact work of a run, in order. */
-export function chunkJobs(runId: number, spec: TrainingRunSpec): ChunkJob[] {
+export function chunkJobs(runId: number, spec: Pick<TrainingRunSpec, "chunkSamples" | "generatingSamples" | "validationSamples">): ChunkJob[] {
   const jobs: ChunkJob[] = [];
   for (const [sampleSet, samples] of [["generating", spec.generatingSamples], ["validation", spec.validationSamples]] as const) {
     for (let first = 0, index = 0; first < samples; first += spec.chunkSamples, index++) {
       jobs.push({ runId, sampleSet, index, first, count: Math.min(spec.chunkSamples, samples - first) });
     }
+  }
+  return jobs;
+}
+
+/**
+ * A pruning run's spec: the parent version, the options of `pruneModel`, and the parent's validation set, propagated
+ * exactly in chunks like a training run's so that the pruned draft gets validation statistics of its own.
+ */
+export interface PruningRunSpec {
+  parentVersionId: number;
+  parentVersion: number;
+  prune: { budgetRmsNm: number; jitterNrad: number; thresholdPm: number };
+  validationSet: StoredValidationSet;
+  chunkSamples: number;
+  generatingSamples: 0;
+  validationSamples: number;
+}
+
+/** Samples per Monte Carlo chunk job: 32 seeded blocks of 1024, a second or two of work on one thread. */
+export const MONTE_CARLO_JOB_SAMPLES = 32 * 1024;
+
+/** A Monte Carlo run's spec: the version, the budget, the limits being verified, and the seeded samples to draw. */
+export interface MonteCarloRunSpec {
+  versionId: number;
+  version: number;
+  ttlBudgetPmPerNrad: number;
+  budgetRmsNm: number;
+  samples: number;
+  seed: number;
+  limits: "uniform" | "per-term";
+  /** The requirement limits (model Noll order, nm) of both allocations; the verified ones are `limits`. */
+  uniformLinearNm: number[];
+  perTermLinearNm: number[];
+  uniformBoundPmPerNrad: number;
+  perTermBoundPmPerNrad: number;
+  zeroWfePeakPmPerNrad: number;
+  jobSamples: number;
+}
+
+/** The chunk jobs of a Monte Carlo run: `first` is always a multiple of the seeded block size (1024). */
+export function monteCarloJobs(runId: number, spec: MonteCarloRunSpec): ChunkJob[] {
+  const jobs: ChunkJob[] = [];
+  for (let first = 0, index = 0; first < spec.samples; first += spec.jobSamples, index++) {
+    jobs.push({ runId, sampleSet: "monte-carlo", index, first, count: Math.min(spec.jobSamples, spec.samples - first) });
   }
   return jobs;
 }

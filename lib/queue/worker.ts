@@ -12,6 +12,7 @@ import { encodeModel } from "../surrogate/modelFile.ts";
 import { generatingCoefficients, trainSurrogate, validationCoefficients, type GeneratingSetSpec, type ValidationSetSpec } from "../surrogate/train.ts";
 import { SOFTWARE_VERSION } from "../version.ts";
 import { queuePrefix, redisConnection, WORK_QUEUE } from "./connection.ts";
+import { finishMonteCarlo, finishPruning, peaksHere, processMonteCarloChunk, type PeakEvaluator } from "./analysisJobs.ts";
 import { isUploaded, type ChunkJob, type TrainingRunSpec } from "./plan.ts";
 
 /** Exact maps of `count` wavefronts (row-major `count x J`), flat `count x M^2` per axis, pm/nrad. */
@@ -25,6 +26,8 @@ export interface WorkerOptions {
   /** Jobs taken at once (one per compute thread). */
   concurrency: number;
   propagate: ChunkPropagator;
+  /** Peak |TTL| of many wavefronts for Monte Carlo runs (default: on the worker's own thread, a block at a time). */
+  evaluatePeaks?: PeakEvaluator;
   /** Where progress lines go (stderr by default). */
   log?: (line: string) => void;
   /** Name of this worker in runs and logs (default host:pid). */
@@ -52,12 +55,13 @@ function runSpec(run: RunRecord): TrainingRunSpec {
 class DesignCache {
   private readonly entries = new Map<string, Float64Array>();
 
-  coefficients(run: RunRecord, model: ModelRecord, sampleSet: "generating" | "validation"): Float64Array {
+  coefficients(run: RunRecord, model: ModelRecord, sampleSet: "generating" | "validation" | "monte-carlo"): Float64Array {
     const key = `${run.id}:${sampleSet}`;
     let hit = this.entries.get(key);
     if (!hit) {
       const spec = runSpec(run);
       const J = model.nollIndices.length;
+      if (sampleSet === "monte-carlo") throw new Error("a Monte Carlo chunk is not a set of exact maps");
       if (sampleSet === "generating") {
         if (isUploaded(spec.generatingSet)) throw new Error("an uploaded generating set is not propagated");
         hit = generatingCoefficients(spec.generatingSet as Exclude<GeneratingSetSpec, { design: "uploaded" }>, J);
@@ -99,6 +103,7 @@ export function startWorker(options: WorkerOptions): WorkerHandle {
     const run = await loadRun(chunk.runId);
     if (!run || !ACTIVE.has(run.state)) return "skipped: the run has ended";
     if (await markRunStarted(run.id, name)) await appendRunLog(run.id, `started on ${name}`, "info", name);
+    if (chunk.sampleSet === "monte-carlo") return processMonteCarloChunk(run, chunk, name, options.evaluatePeaks ?? peaksHere);
     const model = await loadModel(run.modelSlug);
     if (!model) throw new UnrecoverableError(`model ${run.modelSlug} is gone`);
     const J = model.nollIndices.length;
@@ -155,9 +160,17 @@ export function startWorker(options: WorkerOptions): WorkerHandle {
     run = (await loadRun(runId))!;
     const model = await loadModel(run.modelSlug);
     if (!model) throw new UnrecoverableError(`model ${run.modelSlug} is gone`);
+    if (run.kind === "monte-carlo") {
+      return finishMonteCarlo(run, name, (surrogate, coefficientsNm) => options.propagate(surrogate.setup, surrogate.nollIndices, coefficientsNm));
+    }
     const spec = runSpec(run);
     const M = model.setup.farField.pointsPerAxis;
     const computed = await assemble(run, model);
+    if (run.kind === "pruning") {
+      const outcome = await finishPruning(run, model, name, computed.validation);
+      designs.forget(run.id);
+      return outcome;
+    }
 
     const generatingSet: GeneratingSetSpec = isUploaded(spec.generatingSet)
       ? { design: "uploaded", set: await loadSampleSet(model.id, spec.generatingSet.generatingSetId, M) }
@@ -223,7 +236,7 @@ export function startWorker(options: WorkerOptions): WorkerHandle {
     WORK_QUEUE,
     async (job: Job) => {
       try {
-        if (job.name === "chunk") return await processChunk(job.data as ChunkJob);
+        if (job.name === "chunk" || job.name === "monte-carlo-chunk") return await processChunk(job.data as ChunkJob);
         if (job.name === "finish") return await finishTraining((job.data as { runId: number }).runId);
         throw new UnrecoverableError(`unknown job ${job.name}`);
       } catch (error) {
@@ -250,7 +263,19 @@ export function startWorker(options: WorkerOptions): WorkerHandle {
       return;
     }
     log(`run ${runId} failed: ${error.message}`);
-    void failRun(runId, error.message, name).catch((e: Error) => log(`could not record the failure of run ${runId}: ${e.message}`));
+    // The database may be what failed: keep trying to record the failure (every 2 s for 5 minutes), so that a run
+    // never stays "running" after its last attempt (found by npm run soak during a database outage).
+    void (async () => {
+      for (let attempt = 1; ; attempt++) {
+        try {
+          await failRun(runId, error.message, name);
+          return;
+        } catch (e) {
+          if (attempt >= 150) return log(`could not record the failure of run ${runId}: ${(e as Error).message}`);
+          await new Promise((resolve) => setTimeout(resolve, 2000));
+        }
+      }
+    })();
   });
   worker.on("error", (error) => log(`queue error: ${error.message}`));
 

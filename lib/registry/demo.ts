@@ -9,9 +9,9 @@ import { insertVersion, retireVersion, submitVersion } from "../db/versions.ts";
 import { propagateMany } from "../parallel/index.ts";
 import { encodeModel } from "../surrogate/modelFile.ts";
 import type { SurrogateModel } from "../surrogate/model.ts";
-import { pruneModel } from "../surrogate/significance.ts";
 import { trainSurrogate, type TrainingRequest, type TrainingResult } from "../surrogate/train.ts";
 import { SOFTWARE_VERSION } from "../version.ts";
+import { prunedVersionModel } from "./pruning.ts";
 
 export const DEMO_MODEL_SLUG = "velora-transmit";
 const DAY_MS = 24 * 3600 * 1000;
@@ -70,9 +70,13 @@ export async function seedDemoModels(conn: Knex, log: (line: string) => void = c
     log,
   );
   const stored2 = await store(v2.model);
-  const pruned = pruneModel(v2.model, { budgetRmsNm: VELORA_WFE_BUDGET_NM, jitterNrad: VELORA_JITTER_NRAD, thresholdPm: 0.1 }, v2.validationSet!);
-  log(`pruned version 2 to ${pruned.model.terms.length} terms`);
-  await store(pruned.model, stored2.id);
+  // The same derivation as a pruning run on the queue (its chunks propagate this very validation set, from its seed).
+  const pruned = prunedVersionModel(v2.model, { budgetRmsNm: VELORA_WFE_BUDGET_NM, jitterNrad: VELORA_JITTER_NRAD, thresholdPm: 0.1 }, v2.validationSet!);
+  log(
+    `pruned version 2 to ${pruned.terms.length} terms: dropped terms bounded by ${pruned.pruning!.droppedTtlBoundPmPerNrad.toPrecision(3)} pm/nrad, ` +
+      `seen ${pruned.pruning!.droppedTtlSeenPmPerNrad!.toPrecision(3)} pm/nrad`,
+  );
+  await store(pruned, stored2.id);
   const v4 = await train(
     { order: 1, generatingSet: { design: "random", size: 200, maxRmsNm: 10, seed: 11 }, validationSet: { size: 100, maxRmsNm: 10, seed: 12 } },
     log,

@@ -1,6 +1,6 @@
 import type { Knex } from "knex";
 import { assertCan, type Actor } from "../access/actor.ts";
-import { recordAuditEvent } from "../db/audit.ts";
+import { auditedBy, recordAuditEvent } from "../db/audit.ts";
 import { generatingSetSamples } from "../db/generatingSets.ts";
 import { db } from "../db/knex.ts";
 import { requireModel } from "../db/models.ts";
@@ -54,7 +54,7 @@ export async function createTrainingRun(actor: Actor, slug: string, input: Versi
     null,
     conn,
   );
-  await recordAuditEvent({ actorUserId: actor.userId, action: "run.create", subjectType: "run", subjectId: runId, detail: { model: slug, kind: "training" } }, conn);
+  await recordAuditEvent({ ...auditedBy(actor), action: "run.create", subjectType: "run", subjectId: runId, detail: { model: slug, kind: "training" } }, conn);
   try {
     await enqueueTrainingRun(runId, spec);
   } catch (error) {

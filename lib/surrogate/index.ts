@@ -17,7 +17,7 @@ export {
 } from "./evaluate.ts";
 export { axisWeights, interpolateMap, type AxisWeights } from "./interpolate.ts";
 export {
-  pruneModel, splitAxes, termSignificance, type PruneOptions, type PruneResult, type SignificanceOptions, type TermSignificance,
+  droppedBound, pruneModel, splitAxes, termSignificance, type PruneOptions, type PruneResult, type SignificanceOptions, type TermSignificance,
 } from "./significance.ts";
 export {
   coefficientsSha256, decodeModel, encodeModel, MODEL_FILE_SIGNATURE, MODEL_FORMAT_VERSION, ModelFileError, roundToStored,
@@ -27,3 +27,14 @@ export {
   regenerateValidationSet, sampleSetSha256, trainSurrogate, type ExactPropagator, type GeneratingSetSpec, type TrainingPhase, type TrainingRequest,
   type TrainingResult,
 } from "./train.ts";
+export { outputQuadratic, quadraticAt, type OutputQuadratic } from "./quadratic.ts";
+export { maximiseOnBallDiagonal, type BallCase } from "./trustRegion.ts";
+export { checkBudgetRmsNm, maximiseAbsQuadraticOnBall, simpleBoundMaps, worstCase, type WorstCase } from "./worstCase.ts";
+export { couplingModes, linearMapMatrix, projectOntoModes, type CouplingMode, type ModeProjection } from "./modes.ts";
+export { correctWavefront, type CorrectionResult } from "./correction.ts";
+export { checkSpectrum, interpolateLogLog, noiseBudget, worstNoiseNode, type NoiseBudget, type Spectrum } from "./noise.ts";
+export {
+  addMonteCarloPeaks, emptyMonteCarlo, mergeMonteCarlo, MONTE_CARLO_BINS, MONTE_CARLO_CHUNK, monteCarloSamples, requirementLimits,
+  type MonteCarloSummary, type Requirements, type TermLimits,
+} from "./requirements.ts";
+export { runAnalysis, type AnalysisRequest, type AnalysisResult, type AnalysisResults } from "./analysis.ts";

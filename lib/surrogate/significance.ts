@@ -4,6 +4,7 @@ import type { SurrogateModel } from "./model.ts";
 import { coefficientsSha256 } from "./modelFile.ts";
 import { residualStatistics } from "./statistics.ts";
 import { termLabel, type Term } from "./terms.ts";
+import { simpleBoundMaps } from "./worstCase.ts";
 
 export interface SignificanceOptions {
   /** WFE budget: total RMS r of the wavefronts the model will see, nm. */
@@ -70,11 +71,14 @@ export interface PruneResult {
 
 /**
  * A pruned model: the parent's coefficients for the terms whose noise bound reaches the threshold (the
- * constant term always stays). Because the kept coefficients are unchanged, the TTL the dropped terms could
- * have added is bounded by the sum of their bounds (triangle inequality), reported in `pruning`. With a
- * validation set the bound is checked: the largest |pruned - parent| over its wavefronts (each scaled into the
- * budget when outside it) is recorded, and the pruned model's residual statistics against the exact maps
- * replace the parent's.
+ * constant term always stays). Because the kept coefficients are unchanged, the parent minus the pruned model is
+ * the polynomial of the dropped terms alone, `A_d.a + a^T B_d a` (A and B restricted to them), and at every node and
+ * axis its size within the WFE budget obeys the simple bound `||A_d|| r + |lambda|_max(B_d) r^2` (PHYSICS.md
+ * section 6); `pruning.droppedTtlBoundPmPerNrad` is the largest over nodes and axes, and the noise bound is the
+ * jitter times the largest `sqrt(bound_x^2 + bound_y^2)` over nodes (`ds = c_x dtheta_x + c_y dtheta_y`, each axis
+ * jittering by the given amount). With a validation set the bound is checked: the largest |pruned - parent| over its
+ * wavefronts (each scaled into the budget when outside it) is recorded, and the pruned model's residual statistics
+ * against the exact maps replace the parent's.
  *
  * @throws {RangeError} "thresholdPm must be a finite number >= 0" and those of {@link termSignificance}
  */
@@ -91,7 +95,8 @@ export function pruneModel(model: SurrogateModel, options: PruneOptions, validat
   const keptIndices = model.terms.map((term, t) => [term, t] as const).filter(([term]) => keep.has(termLabel(term)));
   const coefficients = new Float64Array(keptIndices.length * P);
   keptIndices.forEach(([, t], k) => coefficients.set(model.coefficients.subarray(t * P, (t + 1) * P), k * P));
-  const droppedTtl = dropped.reduce((s, e) => s + e.ttlBoundPmPerNrad, 0);
+  const droppedMask = model.terms.map((term) => !keep.has(termLabel(term)));
+  const { ttl: droppedTtl, noise: droppedNoise } = droppedBound(model, droppedMask, options);
   const pruned: SurrogateModel = {
     ...model,
     terms: keptIndices.map(([term]) => [...term]),
@@ -104,7 +109,7 @@ export function pruneModel(model: SurrogateModel, options: PruneOptions, validat
       jitterNrad: options.jitterNrad,
       thresholdPm: options.thresholdPm,
       droppedTtlBoundPmPerNrad: droppedTtl,
-      droppedNoiseBoundPm: droppedTtl * options.jitterNrad,
+      droppedNoiseBoundPm: droppedNoise,
       droppedTtlSeenPmPerNrad: null,
     },
   };
@@ -126,6 +131,23 @@ export function pruneModel(model: SurrogateModel, options: PruneOptions, validat
     pruned.statistics = residualStatistics(validation, J, splitAxes(evaluateBatch(pruned, validation.coefficientsNm), validation.count, P / 2));
   }
   return { model: pruned, kept, dropped };
+}
+
+/**
+ * The per-node simple bound of the terms where `mask[t]`: largest over nodes and axes (pm/nrad), and the jitter times
+ * the largest `sqrt(bound_x^2 + bound_y^2)` over nodes (pm).
+ */
+export function droppedBound(model: SurrogateModel, mask: readonly boolean[], options: SignificanceOptions): { ttl: number; noise: number } {
+  if (!mask.some(Boolean)) return { ttl: 0, noise: 0 };
+  const bound = simpleBoundMaps(model, options.budgetRmsNm, mask);
+  const nodes = model.pointsPerAxis * model.pointsPerAxis;
+  let ttl = 0;
+  let noise = 0;
+  for (let n = 0; n < nodes; n++) {
+    ttl = Math.max(ttl, bound[n], bound[nodes + n]);
+    noise = Math.max(noise, Math.hypot(bound[n], bound[nodes + n]));
+  }
+  return { ttl, noise: noise * options.jitterNrad };
 }
 
 /** Split row-major `S x [x map, y map]` outputs into the flat per-axis layout of a sample set. */

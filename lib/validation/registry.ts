@@ -84,9 +84,14 @@ export const reviewBodySchema = z
     }
   });
 
+/** The last instant a MariaDB TIMESTAMP column holds (2^31 - 1 s after the Unix epoch). */
+export const LATEST_STORED_TIME_MS = (2 ** 31 - 1) * 1000;
+
 /** Body of `POST .../versions/{v}/retire`. */
 export const retireBodySchema = z.strictObject({
   reason: z.string({ error: "reason must be a string" }).trim().min(1, "reason must not be empty").max(2000, "reason may have at most 2000 characters"),
-  sunsetAt: z.iso.datetime({ offset: true, error: "sunsetAt must be an ISO 8601 time such as 2027-03-01T00:00:00Z" }),
+  sunsetAt: z.iso
+    .datetime({ offset: true, error: "sunsetAt must be an ISO 8601 time such as 2027-03-01T00:00:00Z" })
+    .refine((v) => Date.parse(v) <= LATEST_STORED_TIME_MS, "sunsetAt must lie before 2038-01-19T03:14:07Z, the last time the registry stores"),
   successorVersion: z.number({ error: "successorVersion must be an integer or null" }).int().positive().nullable(),
 });

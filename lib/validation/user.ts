@@ -37,3 +37,28 @@ export const meSchema = z.object({
   roles: z.array(z.enum(ROLES)),
 });
 export type Me = z.infer<typeof meSchema>;
+
+const rolesSchema = z
+  .array(z.enum(ROLES, { error: `roles may be ${ROLES.join(", ")}` }))
+  .min(1, "Give at least one role (to shut an account, disable it).")
+  .refine((r) => new Set(r).size === r.length, "A role is listed twice.");
+
+/** An admin invites a person by e-mail with the roles the account will hold. */
+export const inviteSchema = z.strictObject({
+  email: z.email("Enter an e-mail address.").max(254, "An e-mail address may have at most 254 characters."),
+  roles: rolesSchema,
+});
+export type InviteInput = z.infer<typeof inviteSchema>;
+
+/** The invited person sets their name and password. */
+export const acceptInvitationSchema = z
+  .strictObject({ name: userNameSchema, password: newPasswordSchema, confirm: z.string() })
+  .refine((v) => v.password === v.confirm, { path: ["confirm"], message: "The two passwords differ." });
+export type AcceptInvitationInput = z.infer<typeof acceptInvitationSchema>;
+
+/** An admin sets a person's roles. */
+export const setRolesSchema = z.strictObject({
+  userId: z.number({ error: "userId must be an integer" }).int().positive(),
+  roles: rolesSchema,
+});
+export type SetRolesInput = z.infer<typeof setRolesSchema>;

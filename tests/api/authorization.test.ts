@@ -76,6 +76,34 @@ const RULES: Record<string, Rule> = {
     permission: "evaluate", modelScoped: true, path: () => "/api/v1/models/velora-transmit/versions/2/exact",
     body: () => ({ wavefront: { ordering: "noll", coefficientsNm: { "4": 1 } } }),
   },
+  // Analysis of a version: read scope or any signed-in person (the demo's released version); pruning: modeller / train.
+  "POST /api/v1/models/{slug}/versions/{version}/worst-case": {
+    permission: "read", modelScoped: true, path: () => "/api/v1/models/velora-transmit/versions/2/worst-case", body: () => ({ budgetRmsNm: 30, jitterNrad: 8 }),
+  },
+  "POST /api/v1/models/{slug}/versions/{version}/requirements": {
+    permission: "read", modelScoped: true, path: () => "/api/v1/models/velora-transmit/versions/2/requirements",
+    body: () => ({ ttlBudgetPmPerNrad: 0.1, budgetRmsNm: 30, samples: 1024, seed: 3 }),
+  },
+  "POST /api/v1/models/{slug}/versions/{version}/modes": { permission: "read", modelScoped: true, path: () => "/api/v1/models/velora-transmit/versions/2/modes", body: () => ({}) },
+  "POST /api/v1/models/{slug}/versions/{version}/correction": {
+    permission: "read", modelScoped: true, path: () => "/api/v1/models/velora-transmit/versions/2/correction",
+    body: () => ({ wavefront: { ordering: "noll", coefficientsNm: { "4": 5 } }, adjustable: { ordering: "noll", indices: [4] }, limitNm: 10 }),
+  },
+  "POST /api/v1/models/{slug}/versions/{version}/noise": {
+    permission: "read", modelScoped: true, path: () => "/api/v1/models/velora-transmit/versions/2/noise",
+    body: () => ({ wavefront: { ordering: "noll", coefficientsNm: { "4": 5 } }, offsetNrad: null, jitterAsd: [[0.001, 10], [1, 1]], allocation: [[0.0001, 1], [10, 1]] }),
+  },
+  "POST /api/v1/wavefronts/fit": {
+    permission: "read", modelScoped: false, path: () => "/api/v1/wavefronts/fit",
+    raw: () => {
+      const form = new FormData();
+      form.set("file", new Blob([new Uint8Array([1, 2, 3])]), "not.npz");
+      return { contentType: "", data: form };
+    },
+  },
+  "POST /api/v1/models/{slug}/versions/{version}/prune": {
+    permission: "train", modelScoped: true, path: () => `/api/v1/models/${slug}/versions/1/prune`, body: () => ({ budgetRmsNm: 10, jitterNrad: 8, thresholdPm: 0.1 }),
+  },
   "POST /api/v1/models/{slug}/generating-sets": {
     permission: "train", modelScoped: true, path: () => `/api/v1/models/${slug}/generating-sets`,
     raw: () => {

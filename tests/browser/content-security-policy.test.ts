@@ -121,12 +121,9 @@ describe("the Content-Security-Policy in a real browser", () => {
         await step(page, `csp-${email}-${pathname}`, async () => {
           const response = await page.goto(pathname, { waitUntil: "networkidle" });
           expect(response!.status()).toBeLessThan(pathname === "/no-such-page-here" ? 405 : 500);
-          const nonce = /'nonce-([^']+)'/.exec(response!.headers()["content-security-policy"] ?? "")?.[1];
-          expect(nonce).toBeDefined();
-          // Every script element of the document carries this response's nonce (what the browser saw, not the HTML).
-          const scripts = await page.evaluate(() => [...document.querySelectorAll("script")].map((s) => s.nonce));
-          expect(scripts.length).toBeGreaterThan(0);
-          expect(scripts.every((n) => n === nonce)).toBe(true);
+          // The policy came with a nonce (the served HTML's script tags carrying it is checked in tests/app/security.test.ts;
+          // chunks the runtime adds later carry none and run under 'strict-dynamic').
+          expect(response!.headers()["content-security-policy"] ?? "").toMatch(/'nonce-[^']+'/);
           // Give the client code a moment to hydrate and fetch.
           await page.waitForTimeout(300);
           expect(watch.problems, pathname).toEqual([]);
@@ -153,19 +150,20 @@ describe("the Content-Security-Policy in a real browser", () => {
     await context.close();
   });
 
-  it("refuses a script without the nonce, and says so", async () => {
+  it("refuses a script in the page that lacks the nonce, and says so", async () => {
     const context = await signedInContext("viewer@velora.test");
     const { page, watch } = await watched(context);
-    await page.goto("/account", { waitUntil: "networkidle" });
-    const ran = await page.evaluate(async () => {
-      const script = document.createElement("script");
-      script.textContent = "window.__injected = true";
-      document.body.appendChild(script);
-      await new Promise((resolve) => setTimeout(resolve, 100));
-      return (window as unknown as { __injected?: boolean }).__injected === true;
+    // The page as served, with one inline script added that carries no nonce (as injected markup would).
+    await page.route("**/account", async (route) => {
+      const response = await route.fetch();
+      const html = (await response.text()).replace("</body>", "<script>window.__injected = true</script></body>");
+      await route.fulfill({ response, body: html });
     });
-    expect(ran).toBe(false);
+    await page.goto("/account", { waitUntil: "networkidle" });
+    expect(await page.evaluate(() => (window as unknown as { __injected?: boolean }).__injected === true)).toBe(false);
     expect(watch.problems.some((p) => /script-src/.test(p))).toBe(true);
+    // The page's own scripts ran all the same: its form is there and interactive.
+    await expect(page.getByRole("button", { name: "Save name" }).isEnabled()).resolves.toBe(true);
     await context.close();
   });
 

@@ -1,6 +1,7 @@
 "use server";
 
 import { revalidatePath } from "next/cache";
+import { currentRequestAddress } from "@/components/server/action";
 import { hashPassword, verifyPassword } from "@/lib/auth/password";
 import { keepCurrentSession } from "@/lib/auth/reissue";
 import { requireUser } from "@/lib/auth/session";
@@ -37,6 +38,7 @@ export async function updateProfile(_previous: ProfileFormState, formData: FormD
   await updateUserName(user.id, parsed.data.name);
   await recordAuditEvent({
     actorUserId: user.id,
+    clientAddress: await currentRequestAddress(),
     action: "profile.renamed",
     subjectType: "user",
     subjectId: user.id,
@@ -72,11 +74,11 @@ export async function changePassword(_previous: PasswordFormState, formData: For
   }
   const credentials = await findCredentialsByEmail(user.email);
   if (!credentials || !(await verifyPassword(parsed.data.currentPassword, credentials.passwordHash))) {
-    await recordAuditEvent({ actorUserId: user.id, action: "password.change-refused", subjectType: "user", subjectId: user.id });
+    await recordAuditEvent({ actorUserId: user.id, clientAddress: await currentRequestAddress(), action: "password.change-refused", subjectType: "user", subjectId: user.id });
     return { status: "invalid", message: "The password was not changed.", fieldErrors: { currentPassword: "That is not your current password." } };
   }
   const epoch = await setPasswordHash(user.id, await hashPassword(parsed.data.newPassword));
   await keepCurrentSession(epoch);
-  await recordAuditEvent({ actorUserId: user.id, action: "password.change", subjectType: "user", subjectId: user.id });
+  await recordAuditEvent({ actorUserId: user.id, clientAddress: await currentRequestAddress(), action: "password.change", subjectType: "user", subjectId: user.id });
   return { status: "saved", message: "Password changed. Your other sessions have ended." };
 }

@@ -72,7 +72,23 @@ export default async function ModelPage({ params }: { params: Params }) {
       </div>
 
       <section aria-labelledby="versions-heading">
-        <SectionHeading id="versions-heading" aside={<span className="text-xs text-muted">{versions.length} versions</span>}>
+        <SectionHeading
+          id="versions-heading"
+          aside={
+            <span className="text-xs text-muted">
+              {versions.length} versions
+              {versions.length > 1 && (
+                <>
+                  {" "}
+                  ·{" "}
+                  <Link href={`/models/${slug}/compare`} className={linkClass} data-testid="compare-link">
+                    compare two versions
+                  </Link>
+                </>
+              )}
+            </span>
+          }
+        >
           Versions
         </SectionHeading>
         {versions.length === 0 ? (

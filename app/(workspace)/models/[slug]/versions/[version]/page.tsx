@@ -150,7 +150,13 @@ export default async function VersionPage({ params }: { params: Params }) {
               ...(v.pruning
                 ? ([
                     ["Pruned from", `${v.pruning.parentTermCount} terms, budget ${v.pruning.budgetRmsNm} nm, jitter ${v.pruning.jitterNrad} nrad, threshold ${v.pruning.thresholdPm} pm`],
-                    ["Dropped terms add", `≤ ${formatNumber(v.pruning.droppedTtlBoundPmPerNrad, 3)} pm/nrad (≤ ${formatNumber(v.pruning.droppedNoiseBoundPm, 3)} pm)`],
+                    ["Dropped terms: bound", `≤ ${formatNumber(v.pruning.droppedTtlBoundPmPerNrad, 3)} pm/nrad (≤ ${formatNumber(v.pruning.droppedNoiseBoundPm, 3)} pm), per-node bound within the budget`],
+                    [
+                      "Dropped terms: seen",
+                      v.pruning.droppedTtlSeenPmPerNrad === null
+                        ? "not checked (no validation set)"
+                        : `${formatNumber(v.pruning.droppedTtlSeenPmPerNrad, 3)} pm/nrad, largest change on the validation wavefronts scaled into the budget`,
+                    ],
                   ] as [string, ReactNode][])
                 : []),
             ]}
@@ -170,6 +176,14 @@ export default async function VersionPage({ params }: { params: Params }) {
             <span className="font-mono">.stpm</span> is the registry&apos;s own model file (the CLI&apos;s{" "}
             <span className="font-mono">stillpoint eval</span> reads it); <span className="font-mono">.npz</span> opens with{" "}
             <span className="font-mono">numpy.load</span>. Both carry the notice below.
+          </p>
+          <p className="mt-2 flex flex-col gap-1 text-sm">
+            <Link href={`/models/${slug}/versions/${v.version}/terms`} className={linkClass} data-testid="terms-link">
+              Coefficient maps and term significance
+            </Link>
+            <Link href={`/models/${slug}/compare?a=${v.version}`} className={linkClass} data-testid="compare-link">
+              Compare with another version
+            </Link>
           </p>
           <p className="mt-2 text-xs">
             <span className="text-muted">SHA-256 of the coefficients</span>

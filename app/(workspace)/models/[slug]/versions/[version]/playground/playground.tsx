@@ -7,6 +7,7 @@ import { formatNumber } from "@/components/format";
 import { HeatmapFigure } from "@/components/plots/heatmap";
 import { StandingNotice } from "@/components/standing-notice";
 import { VersionPicker, type PickableModel } from "@/components/version-picker";
+import { VELORA_EXAMPLE_WAVEFRONT_NM } from "@/lib/demo/velora";
 import { nollToOrders } from "@/lib/optics/zernike";
 import type { ValidityRange } from "@/lib/surrogate/validity";
 
@@ -48,8 +49,8 @@ interface Problem {
 const problemText = (p: Problem, status: number) =>
   [p.detail ?? p.title ?? `The server answered ${status}.`, ...(p.issues ?? []).map((i) => `${i.path}: ${i.message}`)].join(" ");
 
-/** A starting wavefront that shows something on the maps: a little defocus, coma and spherical, nm RMS. */
-const EXAMPLE_NM: Record<number, number> = { 4: 6, 7: -4, 8: 2.5, 11: 3 };
+/** A starting wavefront that shows something on the maps. */
+const EXAMPLE_NM = VELORA_EXAMPLE_WAVEFRONT_NM;
 
 const TERM_NAMES: Record<number, string> = {
   4: "defocus", 5: "astigmatism", 6: "astigmatism", 7: "coma", 8: "coma", 9: "trefoil", 10: "trefoil", 11: "spherical",
