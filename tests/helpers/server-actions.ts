@@ -35,19 +35,15 @@ export async function callAction(agent: Agent, pagePath: string, id: string, arg
 }
 
 /**
- * Calls a server action whose last argument is a FormData (a form's action) as the framework's client does: a
- * multipart body whose part "0" holds the arguments, the form's fields prefixed "1_" and referred to as "$K1".
+ * Calls a form's server action (its last argument a FormData) as a multipart request: part "0" holds the arguments, the
+ * FormData referred to as "$K1" and sent empty, so every field is missing and the action's validation refuses it.
  */
-export async function callFormAction(
-  agent: Agent,
-  pagePath: string,
-  id: string,
-  leading: unknown[],
-  fields: Record<string, string>,
-): Promise<{ status: number; text: string; location?: string }> {
-  let post = agent.post(pagePath).set("Next-Action", id).set("Accept", "text/x-component").field("0", JSON.stringify([...leading, "$K1"]));
-  for (const [name, value] of Object.entries(fields)) post = post.field(`1_${name}`, value);
-  const response = await post
+export async function callFormAction(agent: Agent, pagePath: string, id: string, leading: unknown[]): Promise<{ status: number; text: string; location?: string }> {
+  const response = await agent
+    .post(pagePath)
+    .set("Next-Action", id)
+    .set("Accept", "text/x-component")
+    .field("0", JSON.stringify([...leading, "$K1"]))
     .redirects(0)
     .buffer(true)
     .parse((res, done) => {
