@@ -21,7 +21,8 @@ let runId = 0;
 
 /** Every page.tsx under app/, as a path with its dynamic segments filled with the demo's own values. */
 function allPages(): string[] {
-  const values: Record<string, () => string> = { "[slug]": () => "velora-transmit", "[version]": () => "2", "[id]": () => String(runId) };
+  // [secret]: an invitation link's secret; a well-formed unknown one renders the accept page with its refusal.
+  const values: Record<string, () => string> = { "[slug]": () => "velora-transmit", "[version]": () => "2", "[id]": () => String(runId), "[secret]": () => "A".repeat(43) };
   const found: string[] = [];
   const walk = (dir: string, segments: string[]) => {
     for (const entry of readdirSync(dir)) {

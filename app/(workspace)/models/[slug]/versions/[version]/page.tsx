@@ -171,6 +171,9 @@ export default async function VersionPage({ params }: { params: Params }) {
             <a href={download("npz")} download className={quietButtonClass} data-testid="download-npz">
               Download .npz
             </a>
+            <Link href={`/models/${slug}/versions/${v.version}/analysis`} className={quietButtonClass} data-testid="analysis-link">
+              Analysis: worst case, requirements, modes, correction, noise, measured wavefront
+            </Link>
           </div>
           <p className="mt-2 text-xs text-muted">
             <span className="font-mono">.stpm</span> is the registry&apos;s own model file (the CLI&apos;s{" "}

@@ -1,0 +1,65 @@
+import type { Browser, BrowserContext, Page } from "playwright-core";
+import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { closeDb } from "@/lib/db/knex";
+import { SURROGATE_NOTICE } from "@/lib/surrogate/model";
+import { DEMO_PASSWORD } from "@/seeds/01_demo_accounts";
+import { startAppServer, type AppServer } from "../helpers/app-server";
+import { launchBrowser, step } from "../helpers/browser";
+
+// A viewer on the analysis page of the demo's released version, in a real browser against the production build: the
+// worst case with its maps, the maximising wavefront propagated exactly, the modes and the noise budget.
+
+let server: AppServer;
+let browser: Browser;
+let context: BrowserContext;
+let page: Page;
+
+beforeAll(async () => {
+  server = await startAppServer();
+  browser = await launchBrowser();
+  context = await browser.newContext({ baseURL: server.baseUrl, viewport: { width: 1400, height: 1000 } });
+  context.setDefaultTimeout(30_000);
+  page = await context.newPage();
+  await page.goto("/sign-in");
+  await page.getByLabel("E-mail").fill("viewer@velora.test");
+  await page.getByLabel("Password").fill(DEMO_PASSWORD);
+  await page.getByRole("button", { name: "Sign in" }).click();
+  await page.waitForURL((url) => url.pathname === "/");
+});
+
+afterAll(async () => {
+  await context?.close();
+  await browser?.close();
+  await server?.close();
+  await closeDb();
+});
+
+describe("the analysis page", () => {
+  it("shows the worst case with the worst node marked, and propagates the maximising wavefront exactly", async () => {
+    await step(page, "analysis-worst-case", async () => {
+      await page.goto("/models/velora-transmit/versions/2");
+      await page.getByTestId("analysis-link").click();
+      await page.waitForURL((url) => url.pathname === "/models/velora-transmit/versions/2/analysis");
+      await expect(page.getByText(SURROGATE_NOTICE).count()).resolves.toBeGreaterThan(0);
+      await page.getByTestId("worst-run").click();
+      const summary = page.getByTestId("worst-summary");
+      await summary.waitFor();
+      // The demo model's worst case for 30 nm RMS (PHYSICS.md section 6; seeded demo v2).
+      await expect(summary.textContent()).resolves.toMatch(/Worst \|TTL\| [0-9.]+ pm\/nrad at θ = \(/);
+      await expect(page.getByTestId("worst-exact-maps").locator("svg[data-plot=heatmap] circle").count()).resolves.toBe(1);
+      await page.getByTestId("worst-exact").click();
+      await expect(page.getByTestId("worst-exact-result").textContent()).resolves.toMatch(/exact c[xy] -?[0-9.]+ pm\/nrad, model -?[0-9.]+ pm\/nrad/);
+    });
+  });
+
+  it("computes the modes and the noise budget of the shown wavefront", async () => {
+    await step(page, "analysis-modes-noise", async () => {
+      await page.getByTestId("modes-run").click();
+      await page.getByTestId("modes-sigma").waitFor();
+      await expect(page.getByTestId("modes-split").count()).resolves.toBe(1);
+      await page.getByTestId("noise-run").click();
+      await expect(page.getByTestId("noise-summary").textContent()).resolves.toMatch(/√\(cx² \+ cy²\) = [0-9.]+ pm\/nrad/);
+      await expect(page.getByTestId("noise-margins").locator("tbody tr").count()).resolves.toBe(5);
+    });
+  });
+});
