@@ -68,6 +68,7 @@ const OFF_MENU_PAGES: Record<string, PageRule> = {
   "/runs/[id]": { roles: ALL_ROLES },
   "/models/[slug]/compare": { roles: ALL_ROLES },
   "/models/[slug]/versions/[version]/terms": { roles: ALL_ROLES },
+  "/models/[slug]/versions/[version]/analysis": { roles: ALL_ROLES },
   // The link's secret is the credential; an unknown one is refused on the page itself.
   "/invite/[secret]": { roles: "public", shows: /data-testid="invitation-refused"/ },
 };
