@@ -55,7 +55,8 @@ async function startServer(port: number): Promise<number> {
   const command = plainNext
     ? [`${root}/node_modules/.bin/next`, "start", "-H", "127.0.0.1", "-p", String(port)]
     : [process.execPath, ...profileArgs, "--import", "tsx", `${root}/server/main.ts`, "-H", "127.0.0.1", "-p", String(port)];
-  server = spawn(command[0], command.slice(1), { cwd: root, env, stdio: ["ignore", "ignore", "inherit"] });
+  // The server's own lines (start-up, warm-up) go to stderr with the load test's progress.
+  server = spawn(command[0], command.slice(1), { cwd: root, env, stdio: ["ignore", 2, "inherit"] });
   for (;;) {
     try {
       const response = await fetch(`http://127.0.0.1:${port}/api/v1/openapi.json`);

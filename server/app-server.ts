@@ -2,6 +2,7 @@ import http from "node:http";
 import type { AddressInfo } from "node:net";
 import next from "next";
 import { releasedEvaluationTargets } from "../lib/db/versions.ts";
+import { warmRateLimiter } from "../lib/api/rateLimit.ts";
 import { warmModelCache } from "../lib/registry/evaluate.ts";
 import { directRoute } from "./direct-routes.ts";
 
@@ -29,8 +30,10 @@ export async function startAppServer(options: AppServerOptions): Promise<Running
   const app = next({ dev: false, dir: options.dir, hostname: options.hostname, port: options.port, quiet: options.quiet });
   await app.prepare();
   // instrumentation.ts warms the framework's copy of lib/; the direct path runs this server's own copy, whose
-  // kernels and packed coefficients are made on first use: warm them too (the decoded models are shared).
-  void warmModelCache(() => releasedEvaluationTargets(), options.quiet ? () => {} : console.log);
+  // kernels, packed coefficients and code paths are made on first use: warm them (the decoded models are shared)
+  // before listening, so that the first evaluation after a restart costs what any other does.
+  warmRateLimiter();
+  await warmModelCache(() => releasedEvaluationTargets(), options.quiet ? () => {} : console.log);
   const handle = app.getRequestHandler();
   const server = http.createServer((req, res) => {
     const direct = directRoute(req);
