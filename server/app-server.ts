@@ -1,6 +1,7 @@
 import http from "node:http";
 import type { AddressInfo } from "node:net";
 import next from "next";
+import { warmPool } from "../lib/db/knex.ts";
 import { releasedEvaluationTargets } from "../lib/db/versions.ts";
 import { warmModelCache } from "../lib/registry/evaluate.ts";
 import { directRoute } from "./direct-routes.ts";
@@ -31,6 +32,10 @@ export async function startAppServer(options: AppServerOptions): Promise<Running
   // instrumentation.ts warms the framework's copy of lib/; the direct path runs this server's own copy, whose
   // kernels and packed coefficients are made on first use: warm them too (the decoded models are shared).
   void warmModelCache(() => releasedEvaluationTargets(), options.quiet ? () => {} : console.log);
+  // The pool's first connections opened before the first request (lib/db/knex.ts warmPool; a database that is down
+  // now does not stop the start).
+  const pool = await warmPool();
+  if (!options.quiet && pool.opened < pool.wanted) console.error(`[stillpoint] database: ${pool.opened} of ${pool.wanted} connections opened at start`);
   const handle = app.getRequestHandler();
   const server = http.createServer((req, res) => {
     const direct = directRoute(req);
