@@ -1,10 +1,11 @@
 import http from "node:http";
 import type { AddressInfo } from "node:net";
 import next from "next";
-import { warmPool } from "../lib/db/knex.ts";
+import { databaseReachable, warmPool } from "../lib/db/knex.ts";
 import { releasedEvaluationTargets } from "../lib/db/versions.ts";
 import { warmModelCache } from "../lib/registry/evaluate.ts";
 import { directRoute } from "./direct-routes.ts";
+import { answerDatabaseUnreachable, isPageRequest } from "./unavailable-page.ts";
 
 export interface AppServerOptions {
   /** The project folder holding the production build (.next). */
@@ -37,9 +38,16 @@ export async function startAppServer(options: AppServerOptions): Promise<Running
   const pool = await warmPool();
   if (!options.quiet && pool.opened < pool.wanted) console.error(`[stillpoint] database: ${pool.opened} of ${pool.wanted} connections opened at start`);
   const handle = app.getRequestHandler();
+  // A page reads the database from its first line (the session check); with the database unreachable it answers 503
+  // with Retry-After and a page saying so, as the API does, rather than the framework's error page with a 500.
+  const page = async (req: http.IncomingMessage, res: http.ServerResponse) => {
+    if (await databaseReachable()) await handle(req, res);
+    else answerDatabaseUnreachable(req, res);
+  };
   const server = http.createServer((req, res) => {
     const direct = directRoute(req);
     if (direct) void direct(req, res);
+    else if (isPageRequest(req)) void page(req, res);
     else void handle(req, res);
   });
   // Keep-alive clients (budget scripts, load generators) reuse their connections.

@@ -35,3 +35,13 @@ export async function warmPool(): Promise<{ opened: number; wanted: number }> {
   }
   return { opened, wanted };
 }
+
+/** Whether the database answers now (a trivial query, bounded by DATABASE_CONNECT_TIMEOUT_MS). */
+export async function databaseReachable(): Promise<boolean> {
+  try {
+    await db().raw("select 1");
+    return true;
+  } catch {
+    return false;
+  }
+}
