@@ -1,6 +1,8 @@
 import http from "node:http";
 import type { AddressInfo } from "node:net";
 import next from "next";
+import { clientAddress, CLIENT_ADDRESS_HEADER } from "../lib/auth/address.ts";
+import { getConfig } from "../lib/config/index.ts";
 import { databaseReachable, warmPool } from "../lib/db/knex.ts";
 import { releasedEvaluationTargets } from "../lib/db/versions.ts";
 import { warmModelCache } from "../lib/registry/evaluate.ts";
@@ -14,6 +16,8 @@ export interface AppServerOptions {
   /** 0 for a free port. */
   port: number;
   quiet?: boolean;
+  /** Proxies trusted in front of the server (default TRUSTED_PROXY_HOPS; see lib/auth/address.ts). */
+  trustedProxyHops?: number;
 }
 
 export interface RunningAppServer {
@@ -38,6 +42,7 @@ export async function startAppServer(options: AppServerOptions): Promise<Running
   const pool = await warmPool();
   if (!options.quiet && pool.opened < pool.wanted) console.error(`[stillpoint] database: ${pool.opened} of ${pool.wanted} connections opened at start`);
   const handle = app.getRequestHandler();
+  const trustedHops = options.trustedProxyHops ?? getConfig().trustedProxyHops;
   // A page reads the database from its first line (the session check); with the database unreachable it answers 503
   // with Retry-After and a page saying so, as the API does, rather than the framework's error page with a 500.
   const page = async (req: http.IncomingMessage, res: http.ServerResponse) => {
@@ -45,6 +50,8 @@ export async function startAppServer(options: AppServerOptions): Promise<Running
     else answerDatabaseUnreachable(req, res);
   };
   const server = http.createServer((req, res) => {
+    // Where the request came from, worked out here alone (lib/auth/address.ts); a client's own value is replaced.
+    req.headers[CLIENT_ADDRESS_HEADER] = clientAddress(req.socket.remoteAddress, req.headers["x-forwarded-for"], trustedHops);
     const direct = directRoute(req);
     if (direct) void direct(req, res);
     else if (isPageRequest(req)) void page(req, res);
