@@ -1,12 +1,12 @@
 "use client";
 
-import { AxisBottom, AxisLeft, AxisRight } from "@visx/axis";
+import { AxisBottom, AxisLeft } from "@visx/axis";
 import { Group } from "@visx/group";
 import { HeatmapRect } from "@visx/heatmap";
 import { scaleLinear } from "@visx/scale";
-import { memo, useEffect, useId, useMemo, useState, type PointerEvent as ReactPointerEvent } from "react";
+import { memo, useMemo, type PointerEvent as ReactPointerEvent } from "react";
 import { formatNumber } from "@/components/format";
-import { rasterDataUrl } from "./export";
+import { ColourBar, colourBarWidth, COLOUR_BAR, MapRaster } from "./map-parts";
 import { AXIS_STYLE, PlotFrame, useColourScheme } from "./plot-frame";
 import { colourDomain, heatmapTable, nodeAtPixel, peakNode, rampOf, rampScale, type MapKind, type MapSeries } from "./plot-data";
 import { pointerIn, PlotTooltip, usePlotTooltip } from "./plot-tooltip";
@@ -17,7 +17,6 @@ export const HEATMAP_PLOT = 240;
 export const RASTER_ABOVE = 41;
 
 const MARGIN = { top: 18, left: 44, right: 14, bottom: 36 };
-const BAR = { width: 14, gap: 8, labels: 52 };
 
 /** A map of the figure (label for the read-out, heading, CSV column, values) and how to mark it. */
 export interface HeatmapMap extends MapSeries {
@@ -34,45 +33,6 @@ export interface HoveredNode {
   /** One value per map, in the order of `maps`. */
   values: (number | null)[];
 }
-
-/** `rgb(r, g, b)` or `#rrggbb` to its three channels. */
-function channels(colour: string): [number, number, number] {
-  if (colour.startsWith("#")) return [1, 3, 5].map((i) => parseInt(colour.slice(i, i + 2), 16)) as [number, number, number];
-  const parts = colour.match(/[\d.]+/g)?.map(Number) ?? [128, 128, 128];
-  return [parts[0], parts[1], parts[2]];
-}
-
-/** One map drawn as an image: every node k x k device pixels (no smoothing needed). Memoised: hovering redraws nothing. */
-const MapRaster = memo(function MapRaster({ m, size, values, colour }: { m: number; size: number; values: ArrayLike<number | null>; colour: (v: number) => string }) {
-  const [href, setHref] = useState("");
-  useEffect(() => {
-    const k = Math.max(1, Math.ceil((2 * size) / m));
-    setHref(
-      rasterDataUrl(m * k, m * k, (context) => {
-        const image = context.createImageData(m * k, m * k);
-        for (let iy = 0; iy < m; iy++) {
-          for (let ix = 0; ix < m; ix++) {
-            const v = values[iy * m + ix];
-            if (v === null || v === undefined || !Number.isFinite(v)) continue;
-            const [r, g, b] = channels(colour(v));
-            const row0 = (m - 1 - iy) * k;
-            for (let dy = 0; dy < k; dy++) {
-              let p = ((row0 + dy) * m * k + ix * k) * 4;
-              for (let dx = 0; dx < k; dx++, p += 4) {
-                image.data[p] = r;
-                image.data[p + 1] = g;
-                image.data[p + 2] = b;
-                image.data[p + 3] = 255;
-              }
-            }
-          }
-        }
-        context.putImageData(image, 0, 0);
-      }),
-    );
-  }, [m, size, values, colour]);
-  return href ? <image href={href} width={size} height={size} preserveAspectRatio="none" data-raster="" /> : null;
-});
 
 /** One map as one rect per node, each with its value as a native tooltip (small maps). Memoised like MapRaster. */
 const MapCells = memo(function MapCells({
@@ -127,28 +87,6 @@ const MapCells = memo(function MapCells({
   );
 });
 
-/** The colour bar of the maps of a figure: the ramp over `[lo, hi]` with ticks, labelled with the unit. */
-export function ColourBar({ lo, hi, ramp, unit, height, left, top }: { lo: number; hi: number; ramp: readonly string[]; unit: string; height: number; left: number; top: number }) {
-  const gradientId = `bar-${useId().replace(/[^a-zA-Z0-9_-]/g, "")}`;
-  const scale = scaleLinear<number>({ domain: [lo, hi], range: [height, 0] });
-  return (
-    <Group left={left} top={top} role="img" aria-label={`Colour scale from ${formatNumber(lo, 3)} to ${formatNumber(hi, 3)} ${unit}`} data-colour-bar={`${lo},${hi}`}>
-      <defs>
-        <linearGradient id={gradientId} x1="0" y1="1" x2="0" y2="0">
-          {ramp.map((c, i) => (
-            <stop key={`${c}-${i}`} offset={`${(100 * i) / (ramp.length - 1)}%`} stopColor={c} />
-          ))}
-        </linearGradient>
-      </defs>
-      <text x={0} y={-6} fontSize={10} fill="currentColor">
-        {unit}
-      </text>
-      <rect width={BAR.width} height={height} fill={`url(#${gradientId})`} stroke="currentColor" strokeOpacity={0.5} />
-      <AxisRight left={BAR.width} scale={scale} numTicks={6} {...AXIS_STYLE} tickFormat={(v) => formatNumber(Number(v), 2)} tickLabelProps={{ ...AXIS_STYLE.tickLabelProps, dx: 2, dy: 3 }} />
-    </Group>
-  );
-}
-
 /**
  * Maps over the far-field grid (one cell per node, θx to the right, θy up, axes in nrad) sharing one colour bar, as
  * one SVG: the one heatmap of the product. `kind` picks the scale: signed maps on the diverging ramp centred on zero,
@@ -199,8 +137,7 @@ export function HeatmapFigure({
   const angle = scaleLinear<number>({ domain: [-h, h], range: [cell / 2, size - cell / 2] });
   const angleUp = scaleLinear<number>({ domain: [-h, h], range: [size - cell / 2, cell / 2] });
   const blockWidth = MARGIN.left + size + MARGIN.right;
-  // Room right of the bar for its tick labels and for the unit written above it (about 5.6 px per character at 10 px).
-  const width = maps.length * blockWidth + BAR.gap + Math.max(BAR.width + BAR.labels, Math.ceil(unit.length * 5.6) + 4);
+  const width = maps.length * blockWidth + colourBarWidth(unit);
   const height = MARGIN.top + size + MARGIN.bottom;
   const tooltip = usePlotTooltip<HoveredNode>();
   const raster = m > RASTER_ABOVE;
@@ -287,7 +224,7 @@ export function HeatmapFigure({
             </Group>
           );
         })}
-        <ColourBar lo={lo} hi={hi} ramp={ramp} unit={unit} height={size} left={maps.length * blockWidth + BAR.gap} top={MARGIN.top} />
+        <ColourBar lo={lo} hi={hi} ramp={ramp} unit={unit} height={size} left={maps.length * blockWidth + COLOUR_BAR.gap} top={MARGIN.top} />
       </svg>
       {tooltip.data && (
         <PlotTooltip left={tooltip.left} top={tooltip.top}>

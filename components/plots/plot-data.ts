@@ -208,3 +208,24 @@ export function heatmapTable(title: string, unit: string, thetaNrad: readonly nu
     maps.map((map) => ({ column: map.column ?? map.label, values: map.values })),
   );
 }
+
+/** Centre of cell `i` of `samples` across the unit disc's bounding square, in units of the pupil radius R. */
+export const pupilCellCentre = (i: number, samples: number): number => (2 * i + 1) / samples - 1;
+
+/**
+ * The table a pupil picture exports: what it shows, then one row per cell with ix, iy, x/R, y/R of the cell centre
+ * and each map's value (empty outside the aperture). Maps are `samples x samples`, row-major `[iy][ix]`, y up.
+ */
+export function pupilTable(title: string, unit: string, samples: number, maps: readonly MapSeries[], comments: readonly string[] = []): CsvTable {
+  const rows: (number | null)[][] = [];
+  for (let iy = 0; iy < samples; iy++) {
+    for (let ix = 0; ix < samples; ix++) {
+      rows.push([ix, iy, pupilCellCentre(ix, samples), pupilCellCentre(iy, samples), ...maps.map((map) => map.values[iy * samples + ix] ?? null)]);
+    }
+  }
+  return {
+    comments: [title, `values in ${unit} at the centres of ${samples} x ${samples} cells over the aperture; x/R and y/R in units of the pupil radius; empty outside the aperture`, ...comments],
+    columns: ["ix", "iy", "x_over_r", "y_over_r", ...maps.map((map) => map.column ?? map.label)],
+    rows,
+  };
+}

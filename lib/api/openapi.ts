@@ -440,7 +440,14 @@ function COMPONENT_SCHEMAS(): Record<string, unknown> {
     },
     FitAnswer: {
       type: "object", required: ["wavefront", "residualRmsNm", "samplesInAperture"],
-      properties: { wavefront: ref("Wavefront"), residualRmsNm: { type: "number" }, samplesInAperture: { type: "integer" }, removedNm: { type: "object" }, mapRmsNm: { type: "number" } },
+      properties: {
+        wavefront: ref("Wavefront"), residualRmsNm: { type: "number" }, samplesInAperture: { type: "integer" }, removedNm: { type: "object" }, mapRmsNm: { type: "number" },
+        pictures: {
+          type: "object",
+          description: "The map, the fit and the residual (nm) on samples x samples cell centres over the aperture (x/R, y/R from -1 to 1, row-major [iy][ix], y up), nearest pixel, 6 significant digits; null outside the aperture or without data",
+          properties: { samples: { type: "integer" }, mapNm: { type: "array", items: { type: ["number", "null"] } }, fitNm: { type: "array", items: { type: ["number", "null"] } }, residualNm: { type: "array", items: { type: ["number", "null"] } } },
+        },
+      },
     },
     SetupItem: {
       type: "object",

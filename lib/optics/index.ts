@@ -20,4 +20,4 @@ export {
   type DerivedInput, type DerivedQuantities,
 } from "./derived.ts";
 export { fitZernike, MAX_FIT_PIXELS, type HeightMap, type HeightUnit, type ZernikeFit } from "./zernikeFit.ts";
-export { MAX_PUPIL_MAP_SAMPLES, pupilMap } from "./pupilMap.ts";
+export { MAX_PUPIL_MAP_SAMPLES, MEASURED_PICTURE_SAMPLES, pupilMap, resampleToPupil, wavefrontPupilMap } from "./pupilMap.ts";

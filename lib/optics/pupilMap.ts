@@ -1,4 +1,6 @@
-import { requireFiniteCoefficients } from "./checks.ts";
+import { requireFiniteCoefficients, requirePositiveFinite } from "./checks.ts";
+import type { Wavefront } from "./types.ts";
+import { nollCoefficients } from "./wavefront.ts";
 import { requireNollIndices, ZernikeTerm } from "./zernike.ts";
 
 /** Largest pupil picture (samples per side). */
@@ -36,4 +38,54 @@ export function pupilMap(nollIndices: readonly number[], coefficientsNm: ArrayLi
     }
   }
   return out;
+}
+
+/**
+ * The pupil picture of a wavefront given in either ordering: {@link pupilMap} of its terms (nm).
+ * @throws as {@link nollCoefficients} and {@link pupilMap}
+ */
+export function wavefrontPupilMap(wavefront: Wavefront, samples = 64): Float64Array {
+  const coefficients = nollCoefficients(wavefront);
+  return pupilMap([...coefficients.keys()], [...coefficients.values()], samples);
+}
+
+/** Largest side of the pupil pictures of a measured map (a picture, not the fit: the fit uses every pixel). */
+export const MEASURED_PICTURE_SAMPLES = 96;
+
+/**
+ * A measured map's pixels on the cell centres of a pupil picture: cell `(ix, iy)` at
+ * `x = ((2 ix + 1) / samples - 1) R`, `y` likewise, takes the value of the pixel whose centre is nearest (the pixel
+ * grid of `fitZernike`: pixel `(px, py)` at `((px - (cols - 1)/2) p, (py - (rows - 1)/2) p)`); NaN outside the
+ * disc, off the map, or where the pixel holds NaN. `samples` defaults to the pixels across the aperture, clamped to
+ * 16..{@link MEASURED_PICTURE_SAMPLES}.
+ * @param values row-major `rows x cols`, any unit (returned as given)
+ * @param pixelSizeM pixel pitch, m; apertureDiameterM the aperture's diameter 2R, m
+ * @throws {RangeError} "values must have rows x cols entries" and the positive-number checks
+ */
+export function resampleToPupil(
+  values: ArrayLike<number>,
+  rows: number,
+  cols: number,
+  pixelSizeM: number,
+  apertureDiameterM: number,
+  samples?: number,
+): { samples: number; values: Float64Array } {
+  if (values.length !== rows * cols) throw new RangeError("values must have rows x cols entries");
+  const pixel = requirePositiveFinite(pixelSizeM, "pixelSizeM");
+  const radius = requirePositiveFinite(apertureDiameterM, "apertureDiameterM") / 2;
+  const n = samples ?? Math.min(MEASURED_PICTURE_SAMPLES, Math.max(16, Math.round((2 * radius) / pixel)));
+  const out = new Float64Array(n * n).fill(Number.NaN);
+  for (let iy = 0; iy < n; iy++) {
+    const y = (2 * iy + 1) / n - 1;
+    const py = Math.round((y * radius) / pixel + (rows - 1) / 2);
+    if (py < 0 || py >= rows) continue;
+    for (let ix = 0; ix < n; ix++) {
+      const x = (2 * ix + 1) / n - 1;
+      if (Math.hypot(x, y) > 1) continue;
+      const px = Math.round((x * radius) / pixel + (cols - 1) / 2);
+      if (px < 0 || px >= cols) continue;
+      out[iy * n + ix] = values[py * cols + px];
+    }
+  }
+  return { samples: n, values: out };
 }

@@ -2,6 +2,7 @@ import { assertCan, type Actor } from "../access/actor.ts";
 import { evaluatesVersionState, evaluationTarget, type EvaluationTarget } from "../db/versions.ts";
 import { ForbiddenError, NotFoundError, UnprocessableError } from "../errors.ts";
 import { HeightMapError, readHeightMap } from "../formats/heightMap.ts";
+import { resampleToPupil } from "../optics/pupilMap.ts";
 import { thetaGridNrad } from "../optics/setup.ts";
 import type { Wavefront, ZernikeSet } from "../optics/types.ts";
 import { wavefrontToVector } from "../optics/wavefront.ts";
@@ -273,6 +274,10 @@ export async function fitHeightMap(actor: Actor, read: () => Promise<{ bytes: Ui
   });
   const coefficients: Record<string, number> = {};
   fields.zernike.indices.forEach((index, k) => (coefficients[String(index)] = fit.coefficientsNm[k]));
+  const toNm = fields.units === "m" ? 1e9 : 1;
+  const picture = (values: ArrayLike<number>) => resampleToPupil(values, grid.rows, grid.cols, fields.pixelSizeM, fields.apertureDiameterM);
+  // The pixels the fit used (centre inside the aperture, with data): the same in all three pictures.
+  const measured = picture(Float64Array.from(grid.values, (h, i) => (Number.isFinite(fit.fitNm[i]) ? h * toNm : Number.NaN)));
   const removed: Record<string, number> = {};
   for (const [noll1, value] of Object.entries(fit.removedNm)) removed[String(fields.zernike.ordering === "ansi" ? nollToAnsi(Number(noll1)) : Number(noll1))] = value;
   return {
@@ -284,6 +289,17 @@ export async function fitHeightMap(actor: Actor, read: () => Promise<{ bytes: Ui
     rows: grid.rows,
     cols: grid.cols,
     format: grid.format,
+    pictures: {
+      samples: measured.samples,
+      mapNm: pictureValues(measured.values),
+      fitNm: pictureValues(picture(fit.fitNm).values),
+      residualNm: pictureValues(picture(fit.residualNm).values),
+    },
   };
+}
+
+/** A picture's cells for JSON: 6 significant digits (it is drawn, not fitted), null where the fit used no pixel. */
+function pictureValues(values: Float64Array): (number | null)[] {
+  return Array.from(values, (v) => (Number.isFinite(v) ? Number(v.toPrecision(6)) : null));
 }
 

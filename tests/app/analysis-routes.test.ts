@@ -163,6 +163,30 @@ describe("POST /wavefronts/fit", () => {
     expect(npy.body.wavefront.coefficientsNm["5"]).toBeCloseTo(0, 9);
     expect(npy.body.wavefront.coefficientsNm["6"]).toBeCloseTo(-1.5, 9);
     expect(npy.body.removedNm["1"]).toBeCloseTo(30, 9);
+    // The pictures: one cell per pixel across the aperture (0.26 m / pixel = 63); the map's value at a cell is its
+    // nearest pixel's (the closed form above), the fit equals it and the residual is zero to the 6 digits sent.
+    // (Cell centres fall half-way between pixels here; the test rounds in the same operations as the code.)
+    const pictures = npy.body.pictures;
+    expect(pictures.samples).toBe(63);
+    let drawn = 0;
+    for (let iy = 0; iy < 63; iy++) for (let ix = 0; ix < 63; ix++) {
+      const k = iy * 63 + ix;
+      const x = (2 * ix + 1) / 63 - 1;
+      const y = (2 * iy + 1) / 63 - 1;
+      const px = Math.round(x * 0.13 / pixel + 31.5);
+      const py = Math.round(y * 0.13 / pixel + 31.5);
+      // Null where the nearest pixel was not used by the fit: no data, or its centre outside the aperture.
+      if (Math.hypot(x, y) > 1 || Number.isNaN(values[py * rows + px]) || Math.hypot(px - 31.5, py - 31.5) * pixel > 0.13) {
+        expect(pictures.mapNm[k]).toBeNull();
+        continue;
+      }
+      drawn++;
+      // 6 significant digits of values near 30 nm: within 1e-4 nm.
+      expect(Math.abs(pictures.mapNm[k] - values[py * rows + px])).toBeLessThan(1e-4);
+      expect(Math.abs(pictures.fitNm[k] - pictures.mapNm[k])).toBeLessThan(2e-4);
+      expect(Math.abs(pictures.residualNm[k])).toBeLessThan(1e-6);
+    }
+    expect(drawn).toBeGreaterThan(2500);
     const csv = Array.from({ length: rows }, (_, iy) => Array.from(values.subarray(iy * rows, (iy + 1) * rows), (v) => (Number.isNaN(v) ? "NaN" : String(v * 1e-9))).join(",")).join("\n");
     const text = await fit(new Blob([csv]), { ...fields, units: "m" });
     expect(text.status).toBe(200);

@@ -47,6 +47,11 @@ describe("the analysis page", () => {
       // The demo model's worst case for 30 nm RMS (PHYSICS.md section 6; seeded demo v2).
       await expect(summary.textContent()).resolves.toMatch(/Worst \|TTL\| [0-9.]+ pm\/nrad at θ = \(/);
       await expect(page.getByTestId("worst-exact-maps").locator("svg[data-plot=heatmap] circle").count()).resolves.toBe(1);
+      // The maximising wavefront as a picture over the pupil (its raster drawn, the aperture outlined) beside its bars.
+      const pupil = page.getByTestId("worst-pupil");
+      await pupil.locator("svg[data-plot=pupil-map] image[data-raster]").waitFor();
+      await expect(pupil.locator("[data-aperture]").count()).resolves.toBe(1);
+      await expect(pupil.getByTestId("worst-pupil-0").getAttribute("aria-label")).resolves.toMatch(/RMS over the cells [0-9.]+ nm/);
       await page.getByTestId("worst-exact").click();
       await expect(page.getByTestId("worst-exact-result").textContent()).resolves.toMatch(/exact c[xy] -?[0-9.]+ pm\/nrad, model -?[0-9.]+ pm\/nrad/);
     });
@@ -57,9 +62,33 @@ describe("the analysis page", () => {
       await page.getByTestId("modes-run").click();
       await page.getByTestId("modes-sigma").waitFor();
       await expect(page.getByTestId("modes-split").count()).resolves.toBe(1);
+      // The leading and the trailing mode as pupil pictures, with their singular values.
+      await page.getByTestId("modes-pupil").locator("svg[data-plot=pupil-map] image[data-raster]").nth(1).waitFor();
+      await expect(page.getByTestId("modes-pupil").textContent()).resolves.toMatch(/mode 1 \(σ [0-9.]+\)/);
       await page.getByTestId("noise-run").click();
       await expect(page.getByTestId("noise-summary").textContent()).resolves.toMatch(/√\(cx² \+ cy²\) = [0-9.]+ pm\/nrad/);
       await expect(page.getByTestId("noise-margins").locator("tbody tr").count()).resolves.toBe(5);
+    });
+  });
+
+  it("fits an uploaded height map and shows the map, the fit and the residual as pictures", async () => {
+    await step(page, "analysis-fit", async () => {
+      // 4 nm of defocus on a 32 x 32 grid spanning the aperture (Noll 1976, Table I: sqrt(3)(2 rho^2 - 1)).
+      const diameter = Number(await page.getByLabel("Aperture diameter (m)").inputValue());
+      const n = 32;
+      const rows = Array.from({ length: n }, (_, iy) =>
+        Array.from({ length: n }, (_, ix) => {
+          const rho2 = ((ix - (n - 1) / 2) ** 2 + (iy - (n - 1) / 2) ** 2) / ((n - 1) / 2) ** 2;
+          return String(4 * Math.sqrt(3) * (2 * rho2 - 1));
+        }).join(","),
+      );
+      await page.getByTestId("fit-file").setInputFiles({ name: "defocus.csv", mimeType: "text/csv", buffer: Buffer.from(rows.join("\n")) });
+      await page.getByTestId("fit-pixel").fill(String(diameter / (n - 1)));
+      await page.getByTestId("fit-run").click();
+      await page.getByTestId("fit-summary").waitFor();
+      await page.getByTestId("fit-pupil").locator("svg[data-plot=pupil-map] image[data-raster]").nth(1).waitFor();
+      await page.getByTestId("fit-residual").locator("svg[data-plot=pupil-map] image[data-raster]").waitFor();
+      await expect(page.getByTestId("fit-summary").textContent()).resolves.toMatch(/residual RMS [0-9.e-]+ nm/);
     });
   });
 });

@@ -1,6 +1,6 @@
 "use client";
 
-import { useEffect, useState, type ReactNode } from "react";
+import { useEffect, useMemo, useState, type ReactNode } from "react";
 import { quietButtonClass, SectionHeading, tdClass, thClass } from "@/components/empty-state";
 import { formatDuration, formatNumber } from "@/components/format";
 import { parseIndexList } from "@/components/forms/index-list";
@@ -8,6 +8,8 @@ import { RankedBarChart } from "@/components/plots/bar-chart";
 import { downloadText } from "@/components/plots/export";
 import { HeatmapFigure } from "@/components/plots/heatmap";
 import { LineChart } from "@/components/plots/line-chart";
+import { PupilMapFigure } from "@/components/plots/pupil-map";
+import { wavefrontPupilMap } from "@/lib/optics/pupilMap";
 
 type Json = Record<string, any>; // eslint-disable-line @typescript-eslint/no-explicit-any
 type Grid = number[][];
@@ -103,6 +105,14 @@ function CoefficientBars({ title, coefficients, unit = "nm", testId }: { title: 
   );
 }
 
+/** Cells per side of the pupil pictures of model wavefronts (a maximiser, a mode). */
+const PICTURE_SAMPLES = 64;
+
+/** The pupil picture of a wavefront's coefficients in an ordering, or null while there are none. */
+function usePupilPicture(ordering: Wavefront["ordering"] | undefined, coefficientsNm: Record<string, number> | undefined): Float64Array | null {
+  return useMemo(() => (ordering && coefficientsNm ? wavefrontPupilMap({ ordering, coefficientsNm }, PICTURE_SAMPLES) : null), [ordering, coefficientsNm]);
+}
+
 function downloadJson(value: unknown, name: string) {
   downloadText(JSON.stringify(value, null, 2), name, "application/json");
 }
@@ -176,6 +186,7 @@ function WorstCasePanel({ base, slug, version, defaults }: Shared & { defaults: 
   const run = useCall();
   const exact = useCall();
   const w = run.data;
+  const worstPicture = usePupilPicture(w?.worst.wavefront.ordering, w?.worst.wavefront.coefficientsNm);
   const marker = w ? nodeIndex(w.thetaNrad, w.worst.thetaXNrad, w.worst.thetaYNrad) : null;
   const exactAtWorst =
     exact.data && w && marker ? (exact.data.exact[w.worst.axis === "x" ? "ttlXPmPerNrad" : "ttlYPmPerNrad"][marker.iy][marker.ix] as number | null) : null;
@@ -217,7 +228,18 @@ function WorstCasePanel({ base, slug, version, defaults }: Shared & { defaults: 
             ]}
             testId="worst-bound-maps"
           />
-          <CoefficientBars title={`Maximising wavefront (total ${formatNumber(w.worst.totalRmsNm, 4)} nm RMS)`} coefficients={w.worst.wavefront.coefficientsNm} testId="worst-wavefront" />
+          <div className="flex flex-wrap items-start gap-4">
+            {worstPicture && (
+              <PupilMapFigure
+                title={`Maximising wavefront W(x, y) · ${slug} v${version}`}
+                samples={PICTURE_SAMPLES}
+                maps={[{ label: "W", title: `total ${formatNumber(w.worst.totalRmsNm, 4)} nm RMS`, column: "w_nm", values: worstPicture }]}
+                comments={[`the wavefront inside ${w.budgetRmsNm} nm RMS that reaches ${w.worst.valuePmPerNrad} pm/nrad on c_${w.worst.axis} at (${w.worst.thetaXNrad}, ${w.worst.thetaYNrad}) nrad`]}
+                testId="worst-pupil"
+              />
+            )}
+            <CoefficientBars title={`Maximising wavefront (total ${formatNumber(w.worst.totalRmsNm, 4)} nm RMS)`} coefficients={w.worst.wavefront.coefficientsNm} testId="worst-wavefront" />
+          </div>
           <div className="flex flex-wrap gap-2">
             <button type="button" className={quietButtonClass} onClick={() => downloadJson({ ...w.worst.wavefront, notice: w.notice }, `${slug}-v${version}-worst-wavefront.json`)} data-testid="worst-download">
               Download the wavefront (JSON)
@@ -377,6 +399,10 @@ function ModesPanel({ base, slug, version, wavefront }: Shared) {
   const run = useCall();
   const m = run.data;
   const modes = (m?.modes ?? []) as Json[];
+  const first = modes[0];
+  const last = modes[modes.length - 1];
+  const leadingPicture = usePupilPicture(m?.ordering, first?.coefficientsNm);
+  const trailingPicture = usePupilPicture(m?.ordering, last?.coefficientsNm);
   return (
     <Panel id="modes-heading" title="Coupling modes">
       <div className="flex flex-wrap items-end gap-3">
@@ -396,6 +422,18 @@ function ModesPanel({ base, slug, version, wavefront }: Shared) {
             rankLabel="mode"
             testId="modes-sigma"
           />
+          {leadingPicture && trailingPicture && (
+            <PupilMapFigure
+              title={`Pupil maps of 1 nm RMS of the leading and the trailing mode · ${slug} v${version}`}
+              samples={PICTURE_SAMPLES}
+              maps={[
+                { label: "mode 1", title: `mode 1 (σ ${formatNumber(first.singularValue, 3)})`, column: "mode_1_nm", values: leadingPicture },
+                { label: `mode ${modes.length}`, title: `mode ${modes.length} (σ ${formatNumber(last.singularValue, 3)})`, column: `mode_${modes.length}_nm`, values: trailingPicture },
+              ]}
+              comments={["W(x, y) of a unit-norm combination of the model's terms (1 nm RMS in total); σ in pm/nrad per nm"]}
+              testId="modes-pupil"
+            />
+          )}
           <HeatmapFigure
             title="Linear TTL c_x of 1 nm of the leading and the trailing mode"
             kind="signed"
@@ -646,6 +684,27 @@ function FitPanel({ base, slug, version, ordering, indices, setWavefrontText, ap
               .join(", ")}
             ).
           </p>
+          <div className="flex flex-wrap items-start gap-4">
+            <PupilMapFigure
+              title="Measured map and its fit"
+              samples={f.pictures.samples}
+              maps={[
+                { label: "map", title: `map (${formatNumber(f.mapRmsNm, 4)} nm RMS)`, column: "map_nm", values: f.pictures.mapNm },
+                { label: "fit", title: "fit (with piston and tilt)", column: "fit_nm", values: f.pictures.fitNm },
+              ]}
+              surrogate={false}
+              comments={["nearest pixel at each cell centre, 6 significant digits; the fit and its RMS use every pixel"]}
+              testId="fit-pupil"
+            />
+            <PupilMapFigure
+              title="Residual: map minus fit"
+              samples={f.pictures.samples}
+              maps={[{ label: "residual", title: `residual (${formatNumber(f.residualRmsNm, 4)} nm RMS)`, column: "residual_nm", values: f.pictures.residualNm }]}
+              surrogate={false}
+              comments={["nearest pixel at each cell centre, 6 significant digits; the residual RMS uses every pixel"]}
+              testId="fit-residual"
+            />
+          </div>
           <CoefficientBars title="Fitted Zernike coefficients" coefficients={f.wavefront.coefficientsNm} testId="fit-bars" />
           <div className="flex flex-wrap items-end gap-3">
             <button type="button" className={quietButtonClass} onClick={() => setWavefrontText(JSON.stringify(f.wavefront))}>
