@@ -1,5 +1,5 @@
 import { ZodError } from "zod";
-import { DomainError, RateLimitedError, ServiceUnavailableError, UnauthenticatedError } from "../errors";
+import { DEPENDENCY_RETRY_AFTER_SECONDS, DomainError, RateLimitedError, ServiceUnavailableError, UnauthenticatedError } from "../errors";
 
 /** RFC 9457 problem details. */
 export interface ProblemDetails {
@@ -17,7 +17,7 @@ export const PROBLEM_CONTENT_TYPE = "application/problem+json";
 export function problemHeaders(error: unknown): Record<string, string> {
   if (error instanceof UnauthenticatedError) return { "www-authenticate": 'Bearer realm="stillpoint"' };
   if (error instanceof ServiceUnavailableError || error instanceof RateLimitedError) return { "retry-after": String(Math.max(1, Math.ceil(error.retryAfterSeconds))) };
-  if (isConnectionFailure(error)) return { "retry-after": "5" };
+  if (isConnectionFailure(error)) return { "retry-after": String(DEPENDENCY_RETRY_AFTER_SECONDS) };
   return {};
 }
 
