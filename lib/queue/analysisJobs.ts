@@ -119,6 +119,8 @@ export async function finishMonteCarlo(run: RunRecord, worker: string, exact: Ex
     }
     return { linearLimitsNm, crossLimitsNm2 };
   };
+  // Runs queued before the shares were recorded have none.
+  const keyed = (values: number[] | undefined) => (values ? Object.fromEntries(values.map((v, i) => [keyOf(model, i), v])) : null);
   const uniform = limitsOf(spec.uniformLinearNm);
   const perTerm = limitsOf(spec.perTermLinearNm);
   const exactWorst = Math.max(0, ...exactPeaks.map((v) => v ?? 0));
@@ -132,7 +134,12 @@ export async function finishMonteCarlo(run: RunRecord, worker: string, exact: Ex
     linearLimitsNm: uniform.linearLimitsNm,
     crossLimitsNm2: uniform.crossLimitsNm2,
     boundPmPerNrad: spec.uniformBoundPmPerNrad,
-    perTerm: { ...perTerm, boundPmPerNrad: spec.perTermBoundPmPerNrad },
+    perTerm: {
+      ...perTerm,
+      boundPmPerNrad: spec.perTermBoundPmPerNrad,
+      couplingPmPerNradPerNm: keyed(spec.perTermCouplingPmPerNradPerNm),
+      sharePmPerNrad: keyed(spec.perTermSharePmPerNrad),
+    },
     zeroWfePeakPmPerNrad: spec.zeroWfePeakPmPerNrad,
     verified: {
       limits: spec.limits,

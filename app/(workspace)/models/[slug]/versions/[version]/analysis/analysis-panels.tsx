@@ -341,9 +341,19 @@ function RequirementsPanel({ base, slug, version, defaults }: Shared & { default
             Every |a<sub>i</sub>| ≤ {formatNumber(Object.values(result.linearLimitsNm as Record<string, number>)[0], 4)} nm (and so every |a<sub>i</sub>a<sub>j</sub>| ≤{" "}
             {formatNumber(Object.values(result.crossLimitsNm2 as Record<string, number>)[0], 4)} nm²) keeps |TTL| ≤ {formatNumber(result.boundPmPerNrad, 4)} pm/nrad everywhere on the map (budget {result.ttlBudgetPmPerNrad} pm/nrad). Monte Carlo of {result.verified.samples.toLocaleString()} wavefronts inside the {result.verified.limits} limits: worst {formatNumber(result.verified.worstPmPerNrad, 4)} pm/nrad on the model ({formatNumber(100 * result.verified.budgetFractionUsed, 3)} % of the budget); the {result.verified.worstSamples.length} worst propagated exactly: worst {formatNumber(result.verified.exactWorstPmPerNrad, 4)} pm/nrad, {result.verified.exactOverBudget} above the budget.
           </p>
+          <p className="text-xs text-muted" data-testid="requirements-per-term-note">
+            Per-term limits share the TTL budget among the terms in proportion to each term&apos;s coupling g (its largest TTL per nm within {result.budgetRmsNm} nm RMS): a term
+            takes (budget − TTL at zero WFE) · g / Σg and its limit is the amplitude at which it uses that share; one common factor then makes the bound hold at every node
+            ({formatNumber(result.perTerm.boundPmPerNrad, 4)} pm/nrad). Where the TTL is linear in the terms this gives every term the same limit as the headline; the
+            limits differ where square and product terms matter.
+          </p>
           <RankedBarChart
-            title={`Per-term limits, budget shared by coupling · ${slug} v${version}`}
-            items={Object.entries(result.perTerm.linearLimitsNm as Record<string, number>).map(([k, v]) => ({ label: `Z${k}`, value: v, group: "limit" }))}
+            title={`Per-term limits, TTL budget shared in proportion to coupling · ${slug} v${version}`}
+            items={Object.entries(result.perTerm.linearLimitsNm as Record<string, number>).map(([k, v]) => ({
+              label: result.perTerm.sharePmPerNrad ? `Z${k} (share ${formatNumber(result.perTerm.sharePmPerNrad[k], 2)} pm/nrad)` : `Z${k}`,
+              value: v,
+              group: "limit",
+            }))}
             groups={[{ key: "limit", label: "limit", colour: "rgb(var(--sp-accent))" }]}
             valueLabel="limit"
             unit="nm"
