@@ -9,6 +9,8 @@ export async function register(): Promise<void> {
     import("./lib/api/rateLimit"),
   ]);
   warmRateLimiter();
+  // The pool's first connections before the first request (a database that is down now does not stop the start).
+  await (await import("./lib/db/knex")).warmPool();
   // In the background: the server answers at once; an evaluation that arrives first shares the load in progress.
   void warmModelCache(() => releasedEvaluationTargets());
 }

@@ -3,14 +3,17 @@
 // (default 40,000), then at most 120 s for the runs in flight to end; it stops everything it started by itself.
 //
 // It starts its own MariaDB and Redis instances ("soak", ports SOAK_DATABASE_PORT / SOAK_REDIS_PORT, default 3424 /
-// 6424) because it stops and restarts them, a fresh database seeded with the demo, `next start` (building when
-// stale) and two `stillpoint worker` processes.
+// 6424) because it stops and restarts them, a fresh database seeded with the demo, the production server of
+// `npm start` (server/main.ts, on SOAK_PORT, default 3124; building when stale) and two `stillpoint worker` processes.
+// Before the traffic starts, one request of each kind warms the server (reported apart from the traffic).
 //
 // Traffic: evaluations by three tokens (offsets, summaries, full maps), page loads by a signed-in viewer, a training
 // run every few seconds through a modeller's token (always the same spec, so every run that succeeds must store the
 // same coefficients), uploads of generating sets good and bad (truncated, not a zip, NaN-filled, wrong grid).
 // Faults: MariaDB stopped and started again; Redis restarted while a run is in flight; a worker killed with SIGKILL
-// mid-run and replaced. Each outage is an announced window (from the stop until RECOVERY_SECONDS after the start).
+// mid-run and replaced. Each outage is an announced window (from the stop until RECOVERY_SECONDS after the start);
+// a request is inside a window when the time it was in flight overlaps it (one sent just before the stop and
+// answered during the outage is the outage's).
 //
 // Report: requests served, answers by kind and status, errors by kind and by 10 s window (inside or outside an
 // outage), latency percentiles, answers slower than 5 s, runs started and how they ended, and a check of every
@@ -115,7 +118,8 @@ interface Window {
   to: number;
 }
 const windows: Window[] = [];
-const inWindow = (t: number) => windows.some((w) => t >= w.from && t <= w.to);
+/** Whether a request was in flight at some moment of an outage window (sent before its end, answered after its start). */
+const inWindow = (s: Sample) => windows.some((w) => s.t <= w.to && s.t + s.ms / 1000 >= w.from);
 let stopTraffic = false;
 
 async function timed(kind: Kind, url: string, init: RequestInit = {}): Promise<{ status: number; body: string; headers: Headers | null }> {
@@ -332,19 +336,20 @@ async function main(): Promise<void> {
     "wrong-grid": writeNpz(members(maps.x, Array.from(theta, (v) => v * 1.5))),
   };
 
-  // A signed-in viewer for the page loads (next-auth's own endpoints, as the browser does).
-  startChild("next", `${root}/node_modules/.bin/next`, ["start", "-H", "127.0.0.1", "-p", webPort]);
+  // The workers first (their compute pools start while the server does), then the server `npm start` runs.
+  startWorkerProcess(1);
+  startWorkerProcess(2);
+  startChild("server", process.execPath, ["--import", "tsx", "server/main.ts", "-H", "127.0.0.1", "-p", webPort]);
   for (let i = 0; ; i++) {
     try {
       if ((await fetch(`${base}/api/v1/openapi.json`)).ok) break;
     } catch {
       // not yet
     }
-    if (i > 600) throw new Error("next start did not answer within 60 s");
+    if (i > 600) throw new Error("the server did not answer within 60 s");
     await new Promise((resolve) => setTimeout(resolve, 100));
   }
-  startWorkerProcess(1);
-  startWorkerProcess(2);
+  // A signed-in viewer for the page loads (next-auth's own endpoints, as the browser does).
   const csrfAnswer = await fetch(`${base}/api/auth/csrf`);
   const csrfCookie = (csrfAnswer.headers.getSetCookie?.() ?? []).map((c) => c.split(";")[0]).join("; ");
   const { csrfToken } = (await csrfAnswer.json()) as { csrfToken: string };
@@ -356,6 +361,22 @@ async function main(): Promise<void> {
   });
   const sessionCookie = (signInAnswer.headers.getSetCookie?.() ?? []).map((c) => c.split(";")[0]).find((c) => c.startsWith("next-auth.session-token="));
   if (!sessionCookie) throw new Error(`signing in the viewer failed (${signInAnswer.status})`);
+
+  // Warm-up: one request of each kind, one after the other, before the clock starts (recorded apart: the first
+  // request of a route loads its code and the first evaluation of a model decodes it).
+  await timed("page", `${base}/`, { headers: { cookie: sessionCookie } });
+  for (const body of evaluateBodies) {
+    await timed("evaluate", `${base}/api/v1/models/velora-transmit/versions/2/evaluate`, {
+      method: "POST",
+      headers: { authorization: `Bearer ${evaluators[0]}`, "content-type": "application/json" },
+      body,
+    });
+  }
+  const warmUpForm = new FormData();
+  warmUpForm.set("file", new Blob([bad["not-a-zip"] as BlobPart]), "warm-up.npz");
+  await timed("upload-bad", `${base}/api/v1/models/${trainSlug}/generating-sets`, { method: "POST", headers: { authorization: `Bearer ${modellerToken}` }, body: warmUpForm });
+  await timed("run-poll", `${base}/api/v1/runs`, { headers: { authorization: `Bearer ${modellerToken}` } });
+  const warmUp = samples.splice(0, samples.length);
 
   t0 = performance.now();
   log("traffic starts");
@@ -422,8 +443,9 @@ async function main(): Promise<void> {
   const lines: string[] = [];
   const out = (line = "") => lines.push(line);
   out(`Stillpoint soak report: ${samples.length} requests in ${trafficSeconds.toFixed(0)} s of traffic (${served} answered), ${runs.length} training runs`);
+  out(`Warm-up before the traffic (not counted below): ${warmUp.map((s) => `${s.kind} ${s.status || s.error} in ${f(s.ms)} ms`).join(", ")}`);
   out();
-  out("Outage windows (announced; from the stop until the service was back plus 10 s):");
+  out(`Outage windows (announced; from the stop until the service was back plus ${RECOVERY_SECONDS} s; a request counts inside when its time in flight overlaps one):`);
   for (const w of windows) out(`  ${w.name.padEnd(44)} ${w.from.toFixed(1)} s - ${w.to.toFixed(1)} s`);
   out();
   out("Answers by kind and status, latency (ms) of answered requests:");
@@ -448,10 +470,10 @@ async function main(): Promise<void> {
     const marker = windows.some((w) => w.from < (b + 1) * 10 && w.to >= b * 10) ? "*" : " ";
     out(`  ${marker} ${String(b * 10).padStart(4)}-${String((b + 1) * 10).padEnd(4)} s  ${String(of.length).padStart(6)} requests, ${String(errors.length).padStart(5)} errors  ${[...byKind].map(([k, n]) => `${k}: ${n}`).join(", ")}`);
   }
-  const outside5xx = samples.filter((s) => (s.status >= 500 || s.status === 0) && !inWindow(s.t));
-  const inside503 = samples.filter((s) => s.status === 503 && inWindow(s.t));
+  const outside5xx = samples.filter((s) => (s.status >= 500 || s.status === 0) && !inWindow(s));
+  const inside503 = samples.filter((s) => s.status === 503 && inWindow(s));
   const noRetryAfter = samples.filter((s) => s.status === 503 && !s.retryAfter);
-  const slowInOutage = samples.filter((s) => inWindow(s.t) && s.ms > SLOW_MS);
+  const slowInOutage = samples.filter((s) => inWindow(s) && s.ms > SLOW_MS);
   const slowAnywhere = samples.filter((s) => s.ms > SLOW_MS);
   out();
   out(`5xx or no answer outside the outage windows: ${outside5xx.length}${outside5xx.length ? ` (${outside5xx.slice(0, 5).map((s) => `${s.kind} ${s.status || s.error} at ${s.t.toFixed(1)} s`).join("; ")})` : ""}`);

@@ -13,29 +13,15 @@
 #   MARIADB_DATA_ROOT  parent folder of instance folders (default: <repo>/.data)
 set -euo pipefail
 
-command_name="${1:-}"
-instance="${2:-demo}"
-repo_root="$(cd "$(dirname "${BASH_SOURCE[0]}")/.." && pwd)"
-data_root="${MARIADB_DATA_ROOT:-$repo_root/.data}"
-dir="$data_root/mariadb-$instance"
-
-case "$instance" in
-  demo) default_port=3307 ;;
-  test) default_port=3317 ;;
-  *) default_port="" ;;
-esac
-port="${DATABASE_PORT:-$default_port}"
+service=mariadb
+source "$(dirname "${BASH_SOURCE[0]}")/instance.sh"
+instance_init 3307 3317 DATABASE_PORT MARIADB_DATA_ROOT "$@"
 db_name="${DATABASE_NAME:-stillpoint}"
 db_user="${DATABASE_USER:-app}"
 db_password="${DATABASE_PASSWORD:-stillpoint-local}"
 socket="$dir/mariadb.sock"
 pid_file="$dir/mariadbd.pid"
 
-source "$repo_root/db/instance.sh"
-log() { echo "[mariadb:$instance] $*" >&2; }
-die() { log "error: $*"; exit 1; }
-
-[[ "$instance" =~ ^[A-Za-z0-9_-]+$ ]] || die "instance name may hold only letters, digits, '-' and '_'"
 [[ "$db_name" =~ ^[A-Za-z0-9_]+$ ]] || die "DATABASE_NAME may hold only letters, digits and '_'"
 [[ "$db_user" =~ ^[A-Za-z0-9_]+$ ]] || die "DATABASE_USER may hold only letters, digits and '_'"
 [[ "$db_password" != *"'"* && "$db_password" != *"\\"* ]] || die "DATABASE_PASSWORD may not contain quotes or backslashes"
@@ -56,9 +42,8 @@ ensure_installed() {
 }
 
 start() {
-  [[ -n "$port" ]] || die "set DATABASE_PORT for instance '$instance'"
-  if pid="$(running_pid)"; then
-    log "already running (pid $pid, port $(cat "$dir/port" 2>/dev/null || echo "?"))"
+  require_port
+  if already_running; then
     ensure_database
     return
   fi
@@ -77,18 +62,10 @@ start() {
   setsid mariadbd --no-defaults --user=root --datadir="$dir/data" --bind-address=127.0.0.1 --port="$port" \
     --socket="$socket" --pid-file="$pid_file" --log-error="$dir/error.log" \
     --max-allowed-packet=256M --skip-name-resolve </dev/null >/dev/null 2>&1 9>&- &
-  local waited=0
-  until mariadb-admin --no-defaults --socket="$socket" -uroot ping >/dev/null 2>&1; do
-    sleep 0.1
-    waited=$((waited + 1))
-    if (( waited > 300 )); then
-      tail -n 20 "$dir/error.log" >&2 || true
-      die "server did not answer within 30 s (see $dir/error.log)"
-    fi
-  done
-  echo "$port" >"$dir/port"
+  wait_until 300 "$dir/error.log" mariadb-admin --no-defaults --socket="$socket" -uroot ping \
+    || die "server did not answer within 30 s (see $dir/error.log)"
   ensure_database
-  log "running (pid $(cat "$pid_file"))"
+  started
 }
 
 ensure_database() {
@@ -102,18 +79,4 @@ GRANT ALL PRIVILEGES ON \`$db_name%\`.* TO '$db_user'@'127.0.0.1';
 SQL
 }
 
-stop() { stop_instance 600; }
-
-status() { status_instance socket=$socket; }
-
-# One start or stop at a time per instance (npm start and npm test may run side by side).
-mkdir -p "$data_root"
-exec 9>"$data_root/mariadb-$instance.lock"
-flock 9
-
-case "$command_name" in
-  start) start ;;
-  stop) stop ;;
-  status) status ;;
-  *) echo "usage: db/mariadb.sh start|stop|status [instance]" >&2; exit 2 ;;
-esac
+instance_main 600 "socket=$socket"

@@ -9,25 +9,10 @@
 # REDIS_DATA_ROOT: parent folder of instance folders (default: <repo>/.data).
 set -euo pipefail
 
-command_name="${1:-}"
-instance="${2:-demo}"
-repo_root="$(cd "$(dirname "${BASH_SOURCE[0]}")/.." && pwd)"
-data_root="${REDIS_DATA_ROOT:-$repo_root/.data}"
-dir="$data_root/redis-$instance"
-
-case "$instance" in
-  demo) default_port=6380 ;;
-  test) default_port=6390 ;;
-  *) default_port="" ;;
-esac
-port="${REDIS_PORT:-$default_port}"
+service=redis
+source "$(dirname "${BASH_SOURCE[0]}")/instance.sh"
+instance_init 6380 6390 REDIS_PORT REDIS_DATA_ROOT "$@"
 pid_file="$dir/redis.pid"
-
-source "$repo_root/db/instance.sh"
-log() { echo "[redis:$instance] $*" >&2; }
-die() { log "error: $*"; exit 1; }
-
-[[ "$instance" =~ ^[A-Za-z0-9_-]+$ ]] || die "instance name may hold only letters, digits, '-' and '_'"
 
 ensure_installed() {
   command -v redis-server >/dev/null 2>&1 && command -v redis-cli >/dev/null 2>&1 && return
@@ -41,11 +26,8 @@ ensure_installed() {
 }
 
 start() {
-  [[ -n "$port" ]] || die "set REDIS_PORT for instance '$instance'"
-  if pid="$(running_pid)"; then
-    log "already running (pid $pid, port $(cat "$dir/port" 2>/dev/null || echo "?"))"
-    return
-  fi
+  require_port
+  already_running && return
   ensure_installed
   mkdir -p "$dir"
   rm -f "$pid_file"
@@ -54,30 +36,8 @@ start() {
   redis-server --bind 127.0.0.1 --port "$port" --dir "$dir" --daemonize yes --pidfile "$pid_file" \
     --appendonly yes --save '' --logfile "$dir/redis.log" --protected-mode yes 9>&- \
     || die "redis-server did not start (see $dir/redis.log)"
-  local waited=0
-  until redis-cli -h 127.0.0.1 -p "$port" ping >/dev/null 2>&1; do
-    sleep 0.1
-    waited=$((waited + 1))
-    if (( waited > 200 )); then
-      tail -n 20 "$dir/redis.log" >&2 || true
-      die "server did not answer within 20 s (see $dir/redis.log)"
-    fi
-  done
-  echo "$port" >"$dir/port"
-  log "running (pid $(cat "$pid_file"))"
+  wait_until 200 "$dir/redis.log" redis-cli -h 127.0.0.1 -p "$port" ping || die "server did not answer within 20 s (see $dir/redis.log)"
+  started
 }
 
-stop() { stop_instance 300; }
-
-status() { status_instance; }
-
-mkdir -p "$data_root"
-exec 9>"$data_root/redis-$instance.lock"
-flock 9
-
-case "$command_name" in
-  start) start ;;
-  stop) stop ;;
-  status) status ;;
-  *) echo "usage: db/redis.sh start|stop|status [instance]" >&2; exit 2 ;;
-esac
+instance_main 300

@@ -82,13 +82,16 @@ export class PayloadTooLargeError extends DomainError {
   readonly title = "Too large";
 }
 
+/** The Retry-After of an answer whose dependency (database, queue) is down: API problems and the outage page alike. */
+export const DEPENDENCY_RETRY_AFTER_SECONDS = 5;
+
 /** A service the request depends on (database, queue) is down; the client may retry after `retryAfterSeconds`. */
 export class ServiceUnavailableError extends DomainError {
   readonly status = 503;
   readonly title = "Service unavailable";
   constructor(
     message: string,
-    readonly retryAfterSeconds = 5,
+    readonly retryAfterSeconds = DEPENDENCY_RETRY_AFTER_SECONDS,
   ) {
     super(message);
   }

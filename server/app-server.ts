@@ -1,9 +1,14 @@
 import http from "node:http";
 import type { AddressInfo } from "node:net";
 import next from "next";
+import { clientAddress, CLIENT_ADDRESS_HEADER } from "../lib/auth/address.ts";
+import { getConfig } from "../lib/config/index.ts";
+import { databaseReachable, warmPool } from "../lib/db/knex.ts";
 import { releasedEvaluationTargets } from "../lib/db/versions.ts";
+import { warmRateLimiter } from "../lib/api/rateLimit.ts";
 import { warmModelCache } from "../lib/registry/evaluate.ts";
 import { directRoute } from "./direct-routes.ts";
+import { answerDatabaseUnreachable, isPageRequest } from "./unavailable-page.ts";
 
 export interface AppServerOptions {
   /** The project folder holding the production build (.next). */
@@ -12,6 +17,8 @@ export interface AppServerOptions {
   /** 0 for a free port. */
   port: number;
   quiet?: boolean;
+  /** Proxies trusted in front of the server (default TRUSTED_PROXY_HOPS; see lib/auth/address.ts). */
+  trustedProxyHops?: number;
 }
 
 export interface RunningAppServer {
@@ -29,12 +36,28 @@ export async function startAppServer(options: AppServerOptions): Promise<Running
   const app = next({ dev: false, dir: options.dir, hostname: options.hostname, port: options.port, quiet: options.quiet });
   await app.prepare();
   // instrumentation.ts warms the framework's copy of lib/; the direct path runs this server's own copy, whose
-  // kernels and packed coefficients are made on first use: warm them too (the decoded models are shared).
-  void warmModelCache(() => releasedEvaluationTargets(), options.quiet ? () => {} : console.log);
+  // kernels, packed coefficients and code paths are made on first use. Before listening: the pool's first
+  // connections (lib/db/knex.ts warmPool; a database that is down now does not stop the start), then every evaluation
+  // path on the released versions (the decoded models are shared), so the first request after a restart costs what
+  // any other does.
+  const pool = await warmPool();
+  if (!options.quiet && pool.opened < pool.wanted) console.error(`[stillpoint] database: ${pool.opened} of ${pool.wanted} connections opened at start`);
+  warmRateLimiter();
+  await warmModelCache(() => releasedEvaluationTargets(), options.quiet ? () => {} : console.log);
   const handle = app.getRequestHandler();
+  const trustedHops = options.trustedProxyHops ?? getConfig().trustedProxyHops;
+  // A page reads the database from its first line (the session check); with the database unreachable it answers 503
+  // with Retry-After and a page saying so, as the API does, rather than the framework's error page with a 500.
+  const page = async (req: http.IncomingMessage, res: http.ServerResponse) => {
+    if (await databaseReachable()) await handle(req, res);
+    else answerDatabaseUnreachable(req, res);
+  };
   const server = http.createServer((req, res) => {
+    // Where the request came from, worked out here alone (lib/auth/address.ts); a client's own value is replaced.
+    req.headers[CLIENT_ADDRESS_HEADER] = clientAddress(req.socket.remoteAddress, req.headers["x-forwarded-for"], trustedHops);
     const direct = directRoute(req);
     if (direct) void direct(req, res);
+    else if (isPageRequest(req)) void page(req, res);
     else void handle(req, res);
   });
   // Keep-alive clients (budget scripts, load generators) reuse their connections.

@@ -20,7 +20,7 @@ export function knexConfig(
       // A database that does not answer: fail the connection attempt instead of waiting for the OS (minutes).
       connectTimeout: database.connectTimeoutMs,
     },
-    pool: { min: 0, max: database.poolMax },
+    pool: { min: database.poolMin, max: database.poolMax },
     // No free connection (or none can be made, the database being down) within this time: KnexTimeoutError, which
     // the API answers as 503 with Retry-After. Knex's default is 60 s.
     acquireConnectionTimeout: database.connectTimeoutMs,

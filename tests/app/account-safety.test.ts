@@ -26,7 +26,11 @@ async function person(roles: ("viewer" | "modeller")[] = ["viewer"]) {
   return { id, email, actor: sessionActor((await getUser(id))!) };
 }
 
-/** Each test signs in from its own address (X-Forwarded-For), so the per-address count of one test leaves the others alone. */
+/**
+ * Each test signs in from its own address, so the per-address count of one test leaves the others alone: the server
+ * here trusts one proxy in front of it (TRUSTED_PROXY_HOPS=1), whose X-Forwarded-For entry these requests play.
+ * (Without a trusted proxy the socket's address counts and the header is ignored: tests/app/client-address.test.ts.)
+ */
 async function signInFrom(agent: ReturnType<AppServer["agent"]>, address: string, email: string, password: string): Promise<URL> {
   const csrf = await agent.get("/api/auth/csrf").expect(200);
   const response = await agent
@@ -38,7 +42,7 @@ async function signInFrom(agent: ReturnType<AppServer["agent"]>, address: string
 }
 
 beforeAll(async () => {
-  server = await startAppServer();
+  server = await startAppServer({ trustedProxyHops: 1 });
 });
 
 afterAll(async () => {

@@ -3,6 +3,7 @@ import { closeDb, db } from "@/lib/db/knex";
 import { createInvitation, INVITATION_HOURS, INVITATION_REFUSALS } from "@/lib/db/invitations";
 import { createToken } from "@/lib/db/tokens";
 import { getUser } from "@/lib/db/users";
+import { CLIENT_ADDRESS_HEADER } from "@/lib/auth/address";
 import { verifyPassword } from "@/lib/auth/password";
 import { getConfig } from "@/lib/config";
 import { authenticateToken } from "@/lib/db/tokens";
@@ -21,8 +22,11 @@ vi.mock("next-auth", async (importOriginal) => ({
   getServerSession: vi.fn(async () => session),
 }));
 vi.mock("next/cache", () => ({ revalidatePath: vi.fn() }));
-// The request's headers as Next's server would hand them over (the address the audit events record).
-vi.mock("next/headers", () => ({ headers: vi.fn(async () => new Headers({ host: "registry.velora.test", "x-forwarded-for": "192.0.2.10" })) }));
+// The request's headers as the production server hands them over: the client's address it worked out (the one the
+// audit events record), and a forged X-Forwarded-For beside it that must not count.
+vi.mock("next/headers", () => ({
+  headers: vi.fn(async () => new Headers({ host: "registry.velora.test", [CLIENT_ADDRESS_HEADER]: "192.0.2.10", "x-forwarded-for": "198.51.100.66" })),
+}));
 
 const { disableAccountAction, enableAccountAction, inviteAction, setRolesAction, withdrawInvitationAction } = await import("@/app/(admin)/people/actions");
 const { retireVersionAction } = await import("@/app/(admin)/versions/actions");

@@ -13,6 +13,7 @@ describe("configuration", () => {
       user: "app",
       password: "stillpoint-local",
       poolMax: 10,
+      poolMin: 2,
       connectTimeoutMs: 3000,
     });
   });

@@ -9,11 +9,14 @@ export interface AppServer {
   close: () => Promise<void>;
 }
 
-/** The production build (.next, made by scripts/test.sh) served in this process on a free port. */
-export async function startAppServer(): Promise<AppServer> {
+/**
+ * The production build (.next, made by scripts/test.sh) served in this process on a free port; `trustedProxyHops`
+ * as TRUSTED_PROXY_HOPS (default the configuration's, 0: the socket's address is the client's).
+ */
+export async function startAppServer(options: { trustedProxyHops?: number } = {}): Promise<AppServer> {
   testDatabaseName();
   // The same server as `npm start` (server/app-server.ts): Next.js, with token evaluations answered directly.
-  const running = await startProductionServer({ dir: REPO_ROOT, hostname: "127.0.0.1", port: 0, quiet: true });
+  const running = await startProductionServer({ dir: REPO_ROOT, hostname: "127.0.0.1", port: 0, quiet: true, ...options });
   const baseUrl = `http://127.0.0.1:${running.port}`;
   return { baseUrl, agent: () => request.agent(baseUrl), close: running.close };
 }

@@ -2,7 +2,8 @@ import type { Metadata } from "next";
 import Link from "next/link";
 import { EmptyState, linkClass, quietButtonClass, tdClass, thClass } from "@/components/empty-state";
 import { formatTime } from "@/components/format";
-import { inputClass, selectClass } from "@/components/forms/field";
+import { inputClass } from "@/components/forms/field";
+import { FilterSelect } from "@/components/forms/filter-select";
 import { PageHeading } from "@/components/page-heading";
 import { requirePageActor } from "@/components/server/page";
 import { auditActions, listAuditEvents } from "@/lib/db/audit";
@@ -41,17 +42,7 @@ export default async function AuditPage({ searchParams }: { searchParams: Search
         </a>
       </PageHeading>
       <form method="get" className="mb-4 flex flex-wrap items-end gap-3 text-sm" aria-label="Filter the audit log">
-        <label className="flex flex-col gap-1">
-          <span className="text-xs text-muted">Person</span>
-          <select name="person" defaultValue={filters.person ?? ""} className={selectClass}>
-            <option value="">anybody</option>
-            {people.map((p) => (
-              <option key={p.id} value={p.email}>
-                {p.email}
-              </option>
-            ))}
-          </select>
-        </label>
+        <FilterSelect name="person" label="Person" value={filters.person} anyLabel="anybody" options={people.map((p) => p.email)} />
         <label className="flex flex-col gap-1">
           <span className="text-xs text-muted">Action (with its sub-actions)</span>
           <input name="action" list="audit-actions" defaultValue={filters.action ?? ""} className={inputClass} placeholder="token" />

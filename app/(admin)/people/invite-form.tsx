@@ -4,6 +4,7 @@ import { useRouter } from "next/navigation";
 import { useState } from "react";
 import { useForm } from "react-hook-form";
 import { formatTime } from "@/components/format";
+import { CheckboxGroup } from "@/components/forms/checkbox-group";
 import { describedBy, Field, FormError, inputClass, SubmitButton } from "@/components/forms/field";
 import { errorAt, schemaResolver, useActionErrors } from "@/components/forms/use-action-form";
 import { ROLES } from "@/lib/access/roles";
@@ -62,21 +63,7 @@ export function InviteForm({ hours }: { hours: number }) {
         <Field id="invite-email" label="E-mail" hint={`They get a one-time link, valid for ${hours} hours, to choose a password.`} error={e("email")}>
           <input type="email" autoComplete="off" className={inputClass.replace(" font-mono", "")} {...describedBy("invite-email", e("email"))} {...register("email")} />
         </Field>
-        <fieldset className="flex flex-col gap-1" aria-describedby={e("roles") ? "invite-roles-error" : undefined}>
-          <legend className="mb-1 text-sm font-medium">Roles</legend>
-          {ROLES.map((role) => (
-            <label key={role} className="flex items-baseline gap-2 text-sm">
-              <input type="checkbox" value={role} {...register("roles")} />
-              <span className="font-mono text-xs">{role}</span>
-              <span className="text-xs text-muted">{ROLE_TEXT[role]}</span>
-            </label>
-          ))}
-          {e("roles") && (
-            <p id="invite-roles-error" className="text-xs text-fault">
-              {e("roles")}
-            </p>
-          )}
-        </fieldset>
+        <CheckboxGroup id="invite-roles" legend="Roles" options={ROLES.map((role) => ({ value: role, description: ROLE_TEXT[role] }))} registration={register("roles")} error={e("roles")} />
         <SubmitButton busy={isSubmitting} busyText="Sending…">
           Send invitation
         </SubmitButton>

@@ -3,6 +3,7 @@
 import { useRouter } from "next/navigation";
 import { useState } from "react";
 import { useForm } from "react-hook-form";
+import { CheckboxGroup } from "@/components/forms/checkbox-group";
 import { describedBy, Field, FormError, inputClass, SubmitButton } from "@/components/forms/field";
 import { errorAt, schemaResolver, useActionErrors } from "@/components/forms/use-action-form";
 import type { TokenScope } from "@/lib/access/actor";
@@ -94,43 +95,18 @@ export function TokenForm({ scopes, models }: { scopes: readonly TokenScope[]; m
         <Field id="token-name" label="Name" hint="What uses it, e.g. “budget-script”." error={e("name")}>
           <input className={inputClass.replace(" font-mono", "")} autoComplete="off" {...describedBy("token-name", e("name"))} {...register("name")} />
         </Field>
-        <fieldset className="flex flex-col gap-1" aria-describedby={e("scopes") ? "token-scopes-error" : undefined}>
-          <legend className="mb-1 text-sm font-medium">Scopes</legend>
-          {scopes.map((scope) => (
-            <label key={scope} className="flex items-baseline gap-2 text-sm">
-              <input type="checkbox" value={scope} {...register("scopes")} />
-              <span className="font-mono text-xs">{scope}</span>
-              <span className="text-xs text-muted">{SCOPE_TEXT[scope]}</span>
-            </label>
-          ))}
-          {e("scopes") && (
-            <p id="token-scopes-error" className="text-xs text-fault">
-              {e("scopes")}
-            </p>
-          )}
-        </fieldset>
+        <CheckboxGroup id="token-scopes" legend="Scopes" options={scopes.map((scope) => ({ value: scope, description: SCOPE_TEXT[scope] }))} registration={register("scopes")} error={e("scopes")} />
         <Field id="token-expires" label="Expires" hint="Leave empty for a token that does not expire (00:00 UTC that day)." error={e("expiresAt")}>
           <input type="date" className={inputClass} {...describedBy("token-expires", e("expiresAt"))} {...register("expiresAt")} />
         </Field>
-        <fieldset className="flex flex-col gap-1" aria-describedby={e("models") ? "token-models-error" : "token-models-hint"}>
-          <legend className="mb-1 text-sm font-medium">Models</legend>
-          {models.map((m) => (
-            <label key={m.slug} className="flex items-baseline gap-2 text-sm">
-              <input type="checkbox" value={m.slug} {...register("models")} />
-              <span className="font-mono text-xs">{m.slug}</span>
-              <span className="text-xs text-muted">{m.name}</span>
-            </label>
-          ))}
-          {e("models") ? (
-            <p id="token-models-error" className="text-xs text-fault">
-              {e("models")}
-            </p>
-          ) : (
-            <p id="token-models-hint" className="text-xs text-muted">
-              None ticked: every model, including later ones.
-            </p>
-          )}
-        </fieldset>
+        <CheckboxGroup
+          id="token-models"
+          legend="Models"
+          options={models.map((m) => ({ value: m.slug, description: m.name }))}
+          registration={register("models")}
+          error={e("models")}
+          hint="None ticked: every model, including later ones."
+        />
         <SubmitButton busy={isSubmitting} busyText="Creating…">
           Create token
         </SubmitButton>
