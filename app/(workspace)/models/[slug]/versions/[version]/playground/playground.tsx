@@ -199,7 +199,7 @@ export function Playground({
           <div className="flex flex-wrap items-start gap-4" data-testid="ttl-maps" data-evaluated={answer?.forKey ?? ""}>
             {mapX && mapY && result ? (
               <HeatmapFigure
-                title="Surrogate TTL maps"
+                title={`${slug} v${version} · both axes for this wavefront`}
                 kind="signed"
                 quantity="surrogate c"
                 thetaNrad={thetaNrad}
