@@ -5,6 +5,7 @@ import { clientAddress, CLIENT_ADDRESS_HEADER } from "../lib/auth/address.ts";
 import { getConfig } from "../lib/config/index.ts";
 import { databaseReachable, warmPool } from "../lib/db/knex.ts";
 import { releasedEvaluationTargets } from "../lib/db/versions.ts";
+import { warmRateLimiter } from "../lib/api/rateLimit.ts";
 import { warmModelCache } from "../lib/registry/evaluate.ts";
 import { directRoute } from "./direct-routes.ts";
 import { answerDatabaseUnreachable, isPageRequest } from "./unavailable-page.ts";
@@ -35,12 +36,14 @@ export async function startAppServer(options: AppServerOptions): Promise<Running
   const app = next({ dev: false, dir: options.dir, hostname: options.hostname, port: options.port, quiet: options.quiet });
   await app.prepare();
   // instrumentation.ts warms the framework's copy of lib/; the direct path runs this server's own copy, whose
-  // kernels and packed coefficients are made on first use: warm them too (the decoded models are shared).
-  void warmModelCache(() => releasedEvaluationTargets(), options.quiet ? () => {} : console.log);
-  // The pool's first connections opened before the first request (lib/db/knex.ts warmPool; a database that is down
-  // now does not stop the start).
+  // kernels, packed coefficients and code paths are made on first use. Before listening: the pool's first
+  // connections (lib/db/knex.ts warmPool; a database that is down now does not stop the start), then every evaluation
+  // path on the released versions (the decoded models are shared), so the first request after a restart costs what
+  // any other does.
   const pool = await warmPool();
   if (!options.quiet && pool.opened < pool.wanted) console.error(`[stillpoint] database: ${pool.opened} of ${pool.wanted} connections opened at start`);
+  warmRateLimiter();
+  await warmModelCache(() => releasedEvaluationTargets(), options.quiet ? () => {} : console.log);
   const handle = app.getRequestHandler();
   const trustedHops = options.trustedProxyHops ?? getConfig().trustedProxyHops;
   // A page reads the database from its first line (the session check); with the database unreachable it answers 503

@@ -13,13 +13,6 @@ export interface ProblemDetails {
 
 export const PROBLEM_CONTENT_TYPE = "application/problem+json";
 
-export function problemResponse(problem: ProblemDetails, headers: Record<string, string> = {}): Response {
-  return new Response(JSON.stringify(problem), {
-    status: problem.status,
-    headers: { "content-type": PROBLEM_CONTENT_TYPE, "cache-control": "no-store", ...headers },
-  });
-}
-
 /** Headers a problem carries with it: the Bearer challenge of a 401, the Retry-After of a 503. */
 export function problemHeaders(error: unknown): Record<string, string> {
   if (error instanceof UnauthenticatedError) return { "www-authenticate": 'Bearer realm="stillpoint"' };
@@ -109,7 +102,14 @@ export function withProblems<C>(handler: Handler<C>): Handler<C> {
     try {
       return await handler(request, context);
     } catch (error) {
-      return problemResponse(toProblem(error, new URL(request.url).pathname), problemHeaders(error));
+      const answer = problemAnswer(error, new URL(request.url).pathname);
+      return new Response(answer.body, answer);
     }
   };
+}
+
+/** What a failure answers, as status, headers and text: for withProblems and for writers without a Response. */
+export function problemAnswer(error: unknown, instance: string): { status: number; headers: Record<string, string>; body: string } {
+  const problem = toProblem(error, instance);
+  return { status: problem.status, headers: { "content-type": PROBLEM_CONTENT_TYPE, "cache-control": "no-store", ...problemHeaders(error) }, body: JSON.stringify(problem) };
 }

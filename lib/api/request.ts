@@ -18,7 +18,14 @@ export async function readJson<S extends z.ZodType>(request: Request, schema: S)
 export async function readJsonValue(request: Request): Promise<unknown> {
   const length = Number(request.headers.get("content-length") ?? "0");
   if (length > MAX_JSON_BYTES) throw new PayloadTooLargeError(`The body is ${length} bytes; the limit is ${MAX_JSON_BYTES}.`);
-  const text = await request.text();
+  return parseJsonText(await request.text());
+}
+
+/**
+ * A request body's text as a JSON value.
+ * @throws {PayloadTooLargeError} over MAX_JSON_BYTES; {MalformedJsonError} for no body or text that is not JSON
+ */
+export function parseJsonText(text: string): unknown {
   if (text.length > MAX_JSON_BYTES) throw new PayloadTooLargeError(`The body is over the limit of ${MAX_JSON_BYTES} bytes.`);
   let value: unknown;
   try {

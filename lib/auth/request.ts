@@ -20,14 +20,20 @@ const REFUSALS = {
  */
 export async function requireActor(request: Request): Promise<Actor> {
   const header = request.headers.get("authorization");
-  if (header !== null) {
-    const match = /^Bearer\s+(\S+)\s*$/i.exec(header);
-    if (!match) throw new UnauthenticatedError(REFUSALS.malformed);
-    const result = await authenticateToken(match[1]);
-    if (typeof result === "string") throw new UnauthenticatedError(REFUSALS[result]);
-    return { ...result, clientAddress: requestAddress(request.headers) };
-  }
+  if (header !== null) return bearerActor(header, requestAddress(request.headers));
   const user = await getSessionUser();
   if (!user) throw new UnauthenticatedError("Sign in, or send 'Authorization: Bearer <token>'.");
   return sessionActor(user, requestAddress(request.headers));
+}
+
+/**
+ * Who an `Authorization` header names: the token's owner within its scopes and models.
+ * @throws {UnauthenticatedError} for a header that is not `Bearer <token>` or a token that fails
+ */
+export async function bearerActor(header: string, clientAddress: string | null): Promise<Actor> {
+  const match = /^Bearer\s+(\S+)\s*$/i.exec(header);
+  if (!match) throw new UnauthenticatedError(REFUSALS.malformed);
+  const result = await authenticateToken(match[1]);
+  if (typeof result === "string") throw new UnauthenticatedError(REFUSALS[result]);
+  return { ...result, clientAddress };
 }

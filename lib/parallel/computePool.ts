@@ -137,11 +137,14 @@ export async function propagateHere(
 /**
  * Start a compute pool.
  * @param options.threads worker threads (default: all cores)
+ * @param options.niceIncrement how much lower the threads' scheduling priority is than the process's (Unix nice,
+ *   per thread): a server gives its pool 10, so that the thread answering requests runs first whenever both want a
+ *   core, and a large batch takes what is left.
  * @throws RangeError "threads must be a positive integer"
  */
-export function createComputePool(options: { threads?: number } = {}): ComputePool {
+export function createComputePool(options: { threads?: number; niceIncrement?: number } = {}): ComputePool {
   const threads = threadCount(options.threads);
-  const pool = new Piscina({ filename: workerFile(), minThreads: threads, maxThreads: threads, idleTimeout: 60_000 });
+  const pool = new Piscina({ filename: workerFile(), minThreads: threads, maxThreads: threads, idleTimeout: 60_000, niceIncrement: options.niceIncrement ?? 0 });
   const sharedModels = new WeakMap<SurrogateModel, SharedModel>();
   let nextModelKey = 0;
 

@@ -9,7 +9,7 @@ import { checkFinite, evaluateInto, MAP_SUMMARY_WIDTH, summariseMapsInto } from 
 import { interpolateMap } from "../surrogate/interpolate.ts";
 import { SURROGATE_NOTICE, type SurrogateModel } from "../surrogate/model.ts";
 import { validityWarnings } from "../surrogate/validity.ts";
-import type { EvaluateBody } from "../validation/evaluate.ts";
+import { parseEvaluateBody, type EvaluateBody } from "../validation/evaluate.ts";
 import { ModelCache } from "./modelCache.ts";
 
 /** Decoded models kept by the web server: 512 MB holds about 80 full demo models (6.2 MB each). */
@@ -104,13 +104,28 @@ export async function evaluateWavefronts(
   const now = options.now ?? new Date();
   const target = await evaluableTarget(actor, slug, version, now);
   const model = await surrogateFor(target);
+  const results = await evaluateOnModel(model, body, `version ${version}`, options.pool ?? null);
+  if (actor.tokenId !== null) countEvaluation(actor.tokenId, target.versionId, body.wavefronts.length, now);
+  return {
+    head: { model: slug, version: target.version, state: target.state, coefficientsSha256: target.coefficientsSha256, thetaNrad: Array.from(thetaGridNrad(model.setup.farField)) },
+    results,
+    notice: SURROGATE_NOTICE,
+    headers: retirementHeaders(target),
+  };
+}
+
+/**
+ * The results of an evaluate body on a decoded model (the work of {@link evaluateWavefronts} once the version is
+ * known): validity per wavefront, maps on the pool for large batches, summaries in slices between yields.
+ * @param label how the strict refusal names the model ("version 2")
+ */
+export async function evaluateOnModel(model: SurrogateModel, body: EvaluateBody, label: string, poolOption: ComputePool | (() => ComputePool) | null): Promise<EvaluationResult[]> {
   const M = model.pointsPerAxis;
   const nodes = M * M;
   const J = model.nollIndices.length;
   const S = body.wavefronts.length;
   const theta = thetaGridNrad(model.setup.farField);
   const h = model.setup.farField.halfAngleNrad;
-
   const issues: { path: string; message: string }[] = [];
   const coefficients = new Float64Array(S * J);
   const warnings: string[][] = new Array(S);
@@ -133,13 +148,13 @@ export async function evaluateWavefronts(
   if (body.strict) {
     const outside = warnings.map((w, i) => ({ path: `wavefronts.${i}`, message: w.join("; ") })).filter((issue) => issue.message !== "");
     if (outside.length > 0) {
-      throw new OutsideValidityRangeError(`${outside.length} of ${S} wavefronts lie outside the validity range of version ${version} (strict).`, outside.slice(0, 100));
+      throw new OutsideValidityRangeError(`${outside.length} of ${S} wavefronts lie outside the validity range of ${label} (strict).`, outside.slice(0, 100));
     }
   }
 
   // A summary of a large batch is made in the workers from maps that never leave them; otherwise the maps of every
   // wavefront (row-major S x [c_x map, c_y map]) come here and are summarised slice by slice.
-  const pool = options.pool && S >= POOL_BATCH_THRESHOLD ? (typeof options.pool === "function" ? options.pool() : options.pool) : null;
+  const pool = poolOption && S >= POOL_BATCH_THRESHOLD ? (typeof poolOption === "function" ? poolOption() : poolOption) : null;
   let maps: Float64Array | null = null;
   let summaries: Float64Array | null = null;
   try {
@@ -195,13 +210,7 @@ export async function evaluateWavefronts(
       results[i] = result;
     }
   }
-  if (actor.tokenId !== null) countEvaluation(actor.tokenId, target.versionId, S, now);
-  return {
-    head: { model: slug, version: target.version, state: target.state, coefficientsSha256: target.coefficientsSha256, thetaNrad: Array.from(theta) },
-    results,
-    notice: SURROGATE_NOTICE,
-    headers: retirementHeaders(target),
-  };
+  return results;
 }
 
 /**
@@ -239,8 +248,10 @@ export function answerStream(answer: EvaluationAnswer): ReadableStream<Uint8Arra
 }
 
 /**
- * Load the released versions into the model cache (newest first, as many as the cache holds), so that the first
- * evaluation after a restart finds its model decoded. Failures are logged, never fatal: requests load on demand.
+ * Load the released versions into the model cache (newest first, as many as the cache holds) and run each through
+ * every kind of evaluation once, so that the first request after a restart finds its model decoded and the
+ * evaluation path compiled (kernels, validation, interpolation, JSON). Failures are logged, never fatal: requests
+ * load on demand.
  */
 export async function warmModelCache(listReleased: () => Promise<EvaluationTarget[]>, log: (line: string) => void = console.log): Promise<void> {
   try {
@@ -249,11 +260,18 @@ export async function warmModelCache(listReleased: () => Promise<EvaluationTarge
     for (const target of await listReleased()) {
       if (modelCache().bytesUsed > modelCache().maxBytes * 0.8) break;
       const model = await surrogateFor(target);
-      // One evaluation compiles the kernels and the evaluation path before a client needs them.
-      evaluateInto(model, new Float64Array(model.nollIndices.length), new Float64Array(2 * model.pointsPerAxis ** 2));
+      for (const output of ["offsets", "map", "summary"] as const) {
+        const body = await parseEvaluateBody({
+          wavefronts: [{ ordering: "noll", coefficientsNm: { [String(model.nollIndices[0])]: 1 } }],
+          output,
+          ...(output === "offsets" ? { offsetsNrad: [[0, 0]] } : {}),
+          jitterNrad: 1,
+        });
+        JSON.stringify(await evaluateOnModel(model, body, "warm-up", null));
+      }
       loaded++;
     }
-    if (loaded > 0) log(`[stillpoint] ${loaded} released model versions decoded into the cache in ${Math.round(performance.now() - began)} ms`);
+    if (loaded > 0) log(`[stillpoint] ${loaded} released model versions decoded and evaluated once in ${Math.round(performance.now() - began)} ms`);
   } catch (error) {
     log(`[stillpoint] could not warm the model cache: ${(error as Error).message}`);
   }

@@ -1,3 +1,4 @@
+import { readdirSync, readFileSync } from "node:fs";
 import { afterAll, describe, expect, it } from "vitest";
 import { TtlPropagator, type OpticalSetup } from "@/lib/optics/index.ts";
 import { createComputePool } from "@/lib/parallel/index.ts";
@@ -108,5 +109,26 @@ describe("ComputePool.propagate", () => {
     // The pool still works afterwards.
     const after = await pool.propagate(setup, indices, coefficients.subarray(0, 6));
     expect(after.count).toBe(2);
+  });
+});
+
+describe("createComputePool niceIncrement", () => {
+  /** Nice values of this process's threads (Linux: /proc/self/task/<tid>/stat, field 19 of proc(5)). */
+  const threadNiceValues = () =>
+    readdirSync("/proc/self/task").map((tid) => Number(readFileSync(`/proc/self/task/${tid}/stat`, "utf8").split(") ")[1].split(" ")[16]));
+
+  it.runIf(process.platform === "linux")("runs the pool's threads at the lower priority and leaves the calling thread alone", async () => {
+    const before = threadNiceValues().filter((nice) => nice === 7).length;
+    const niced = createComputePool({ threads: 2, niceIncrement: 7 });
+    try {
+      // The threads start with the first task; two tasks at once occupy both.
+      const input = randomDesign(4, { size: 64, maxRmsNm: 15, seed: 9 });
+      await Promise.all([niced.evaluateBatch(model, input), niced.evaluateBatch(model, input)]);
+      // The two pool threads, and any thread they start (which inherits their priority).
+      expect(threadNiceValues().filter((nice) => nice === 7).length - before).toBeGreaterThanOrEqual(2);
+      expect(readFileSync("/proc/thread-self/stat", "utf8").split(") ")[1].split(" ")[16]).toBe("0");
+    } finally {
+      await niced.close();
+    }
   });
 });

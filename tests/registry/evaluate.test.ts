@@ -4,11 +4,11 @@ import { closeDb, db } from "@/lib/db/knex";
 import { loadModel } from "@/lib/db/models";
 import { reviewVersion } from "@/lib/db/reviews";
 import { createToken, authenticateToken, flushTokenUsage } from "@/lib/db/tokens";
-import { insertVersion, retireVersion, submitVersion } from "@/lib/db/versions";
+import { evaluationTarget, insertVersion, retireVersion, submitVersion } from "@/lib/db/versions";
 import { nollToAnsi } from "@/lib/optics/zernike";
 import { runTtlTask } from "@/lib/parallel/ttlTask";
 import { createComputePool, type ComputePool } from "@/lib/parallel/computePool";
-import { evaluateWavefronts } from "@/lib/registry/evaluate";
+import { evaluateWavefronts, modelCache, warmModelCache } from "@/lib/registry/evaluate";
 import { evaluateMap } from "@/lib/surrogate/evaluate";
 import { encodeModel } from "@/lib/surrogate/modelFile";
 import type { SurrogateModel } from "@/lib/surrogate/model";
@@ -199,5 +199,26 @@ describe("evaluating a pinned version", () => {
     });
     const successor = await evaluateWavefronts(viewer, slug, 2, body({ wavefronts: [wavefront], output: "summary" }));
     expect(successor.headers).toEqual({});
+  });
+});
+
+describe("warmModelCache", () => {
+  it("decodes each listed version into the cache and runs it through every output once", async () => {
+    const target = (await evaluationTarget(slug, 2))!;
+    const key = `${target.versionId}:${target.coefficientsSha256}`;
+    const lines: string[] = [];
+    await warmModelCache(async () => [target], (line) => lines.push(line));
+    expect(lines).toEqual([expect.stringMatching(/^\[stillpoint\] 1 released model versions decoded and evaluated once in \d+ ms$/)]);
+    // In the cache now: a get with a loader that fails finds the decoded model without calling it.
+    const cached = await modelCache().get(key, () => Promise.reject(new Error("not cached")));
+    expect(cached.nollIndices).toEqual(surrogate.nollIndices);
+  });
+
+  it("logs a failure to list and leaves the cache as it was", async () => {
+    const lines: string[] = [];
+    const size = modelCache().size;
+    await warmModelCache(() => Promise.reject(new Error("database unreachable")), (line) => lines.push(line));
+    expect(lines).toEqual(["[stillpoint] could not warm the model cache: database unreachable"]);
+    expect(modelCache().size).toBe(size);
   });
 });

@@ -4,6 +4,7 @@ import { notFound } from "next/navigation";
 import type { ReactNode } from "react";
 import { linkClass, SectionHeading, tdClass, thClass } from "@/components/empty-state";
 import { formatNumber, formatTerm } from "@/components/format";
+import { ModelTrail } from "@/components/model-trail";
 import { PageHeading } from "@/components/page-heading";
 import { orNotFound, requirePageActor } from "@/components/server/page";
 import { StandingNotice } from "@/components/standing-notice";
@@ -141,15 +142,7 @@ export default async function ComparePage({ params, searchParams }: { params: Pa
   return (
     <div className="flex flex-col gap-6">
       <div>
-        <p className="text-xs text-muted">
-          <Link href="/" className={linkClass}>
-            Catalogue
-          </Link>{" "}
-          /{" "}
-          <Link href={`/models/${slug}`} className={`font-mono ${linkClass}`}>
-            {slug}
-          </Link>
-        </p>
+        <ModelTrail slug={slug} />
         <PageHeading title={`${model.name} · version ${a.version} against version ${b.version}`} />
         <form method="get" className="flex flex-wrap items-end gap-3 text-sm" data-testid="compare-form">
           {(["a", "b"] as const).map((side) => (

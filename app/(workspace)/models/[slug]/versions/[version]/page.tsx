@@ -1,16 +1,15 @@
 import type { Metadata } from "next";
 import Link from "next/link";
-import { notFound } from "next/navigation";
 import type { ReactNode } from "react";
 import { linkClass, quietButtonClass, SectionHeading, tdClass, thClass } from "@/components/empty-state";
 import { formatIndexList, formatNumber, formatTime } from "@/components/format";
+import { ModelTrail } from "@/components/model-trail";
 import { PageHeading } from "@/components/page-heading";
-import { orNotFound, requirePageActor } from "@/components/server/page";
+import { orNotFound, requirePageVersion } from "@/components/server/page";
 import { StandingNotice } from "@/components/standing-notice";
 import { StateBadge } from "@/components/state-badge";
 import { can } from "@/lib/access/actor";
 import { getModel } from "@/lib/db/models";
-import { getVersion } from "@/lib/db/versions";
 import { thetaGridNrad } from "@/lib/optics/setup";
 import type { ErrorSummary } from "@/lib/surrogate/statistics";
 import { ResidualPlots } from "./residual-plots";
@@ -55,9 +54,8 @@ function StatisticsRow({ label, summary }: { label: ReactNode; summary: ErrorSum
 
 export default async function VersionPage({ params }: { params: Params }) {
   const { slug, version: raw } = await params;
-  if (!/^[1-9]\d{0,8}$/.test(raw)) notFound();
-  const { user, actor } = await requirePageActor();
-  const [model, v] = await Promise.all([orNotFound(getModel(actor, slug)), orNotFound(getVersion(actor, slug, Number(raw)))]);
+  const { user, actor, version: v } = await requirePageVersion(slug, raw);
+  const model = await orNotFound(getModel(actor, slug));
   const mayTrain = can(actor, "train", slug);
   const maySubmit = v.state === "draft" && mayTrain && v.createdBy === user.email;
   const p = v.provenance;
@@ -70,15 +68,7 @@ export default async function VersionPage({ params }: { params: Params }) {
   return (
     <div className="flex flex-col gap-6">
       <div>
-        <p className="text-xs text-muted">
-          <Link href="/" className={linkClass}>
-            Catalogue
-          </Link>{" "}
-          /{" "}
-          <Link href={`/models/${slug}`} className={`font-mono ${linkClass}`}>
-            {slug}
-          </Link>
-        </p>
+        <ModelTrail slug={slug} />
         <PageHeading title={`${model.name} · version ${v.version}`}>
           <div className="flex items-start gap-3">
             <span data-testid="version-state">

@@ -2,6 +2,7 @@ import type { Metadata } from "next";
 import Link from "next/link";
 import { linkClass } from "@/components/empty-state";
 import { formatIndexList } from "@/components/format";
+import { ModelTrail } from "@/components/model-trail";
 import { PageHeading } from "@/components/page-heading";
 import { orNotFound, requirePageActor } from "@/components/server/page";
 import { listGeneratingSets } from "@/lib/db/generatingSets";
@@ -22,15 +23,7 @@ export default async function NewVersionPage({ params }: { params: Params }) {
   const { setup } = model.setup;
   return (
     <section aria-labelledby="train-heading">
-      <p className="text-xs text-muted">
-        <Link href="/" className={linkClass}>
-          Catalogue
-        </Link>{" "}
-        /{" "}
-        <Link href={`/models/${slug}`} className={`font-mono ${linkClass}`}>
-          {slug}
-        </Link>
-      </p>
+      <ModelTrail slug={slug} />
       <PageHeading id="train-heading" title="Train a new version" />
       <p className="mb-4 max-w-3xl text-sm text-muted">
         The new version is fitted for {model.name}: setup “{model.setup.name}” ({setup.farField.pointsPerAxis}² nodes, pupil{" "}

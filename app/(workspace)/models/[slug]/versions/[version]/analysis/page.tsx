@@ -1,12 +1,10 @@
 import type { Metadata } from "next";
-import Link from "next/link";
-import { notFound } from "next/navigation";
-import { linkClass } from "@/components/empty-state";
+import { ModelTrail } from "@/components/model-trail";
 import { PageHeading } from "@/components/page-heading";
-import { orNotFound, requirePageActor } from "@/components/server/page";
+import { requirePageVersion } from "@/components/server/page";
 import { StateBadge } from "@/components/state-badge";
 import { StandingNotice } from "@/components/standing-notice";
-import { evaluatesVersionState, getVersion } from "@/lib/db/versions";
+import { evaluatesVersionState } from "@/lib/db/versions";
 import { VELORA_JITTER_NRAD, VELORA_WFE_BUDGET_NM } from "@/lib/demo/velora";
 import { AnalysisPanels } from "./analysis-panels";
 
@@ -20,26 +18,12 @@ export async function generateMetadata({ params }: { params: Params }): Promise<
 /** The analyses of one version (API.md "Analysis"): each panel calls its route with the session and plots the answer. */
 export default async function AnalysisPage({ params }: { params: Params }) {
   const { slug, version: raw } = await params;
-  if (!/^[1-9]\d{0,8}$/.test(raw)) notFound();
-  const { actor } = await requirePageActor();
-  const v = await orNotFound(getVersion(actor, slug, Number(raw)));
+  const { actor, version: v } = await requirePageVersion(slug, raw);
   const analysable = evaluatesVersionState(actor, v.state);
   return (
     <div className="flex flex-col gap-4">
       <div>
-        <p className="text-xs text-muted">
-          <Link href="/" className={linkClass}>
-            Catalogue
-          </Link>{" "}
-          /{" "}
-          <Link href={`/models/${slug}`} className={`font-mono ${linkClass}`}>
-            {slug}
-          </Link>{" "}
-          /{" "}
-          <Link href={`/models/${slug}/versions/${v.version}`} className={linkClass}>
-            version {v.version}
-          </Link>
-        </p>
+        <ModelTrail slug={slug} version={v.version} />
         <PageHeading title={`Analysis · ${slug} v${v.version}`}>
           <StateBadge state={v.state} />
         </PageHeading>

@@ -1,12 +1,10 @@
 import type { Metadata } from "next";
-import Link from "next/link";
-import { notFound } from "next/navigation";
-import { linkClass } from "@/components/empty-state";
+import { ModelTrail } from "@/components/model-trail";
 import { PageHeading } from "@/components/page-heading";
 import { evaluableModels } from "@/components/server/pickable-models";
-import { orNotFound, requirePageActor } from "@/components/server/page";
+import { requirePageVersion } from "@/components/server/page";
 import { StateBadge } from "@/components/state-badge";
-import { evaluatesVersionState, getVersion } from "@/lib/db/versions";
+import { evaluatesVersionState } from "@/lib/db/versions";
 import { thetaGridNrad } from "@/lib/optics/setup";
 import { toNollIndices } from "@/lib/optics/zernike";
 import { Playground } from "./playground";
@@ -20,28 +18,15 @@ export async function generateMetadata({ params }: { params: Params }): Promise<
 
 export default async function PlaygroundPage({ params }: { params: Params }) {
   const { slug, version: raw } = await params;
-  if (!/^[1-9]\d{0,8}$/.test(raw)) notFound();
-  const { actor } = await requirePageActor();
-  const [v, { models }] = await Promise.all([orNotFound(getVersion(actor, slug, Number(raw))), evaluableModels(actor)]);
+  const { actor, version: v } = await requirePageVersion(slug, raw);
+  const { models } = await evaluableModels(actor);
   const evaluable = evaluatesVersionState(actor, v.state);
   const sunsetPassed = v.retirement !== null && Date.parse(v.retirement.sunsetAt) <= Date.now();
 
   return (
     <div className="flex flex-col gap-4">
       <div>
-        <p className="text-xs text-muted">
-          <Link href="/" className={linkClass}>
-            Catalogue
-          </Link>{" "}
-          /{" "}
-          <Link href={`/models/${slug}`} className={`font-mono ${linkClass}`}>
-            {slug}
-          </Link>{" "}
-          /{" "}
-          <Link href={`/models/${slug}/versions/${v.version}`} className={linkClass}>
-            version {v.version}
-          </Link>
-        </p>
+        <ModelTrail slug={slug} version={v.version} />
         <PageHeading title={`Evaluate playground · ${slug} v${v.version}`}>
           <StateBadge state={v.state} />
         </PageHeading>

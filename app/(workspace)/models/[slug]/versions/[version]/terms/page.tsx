@@ -1,14 +1,13 @@
 import type { Metadata } from "next";
-import Link from "next/link";
-import { notFound } from "next/navigation";
-import { linkClass, SectionHeading } from "@/components/empty-state";
+import { SectionHeading } from "@/components/empty-state";
 import { formatTerm } from "@/components/format";
+import { ModelTrail } from "@/components/model-trail";
 import { PageHeading } from "@/components/page-heading";
-import { orNotFound, requirePageActor } from "@/components/server/page";
+import { orNotFound, requirePageVersion } from "@/components/server/page";
 import { StandingNotice } from "@/components/standing-notice";
 import { VELORA_JITTER_NRAD } from "@/lib/demo/velora";
 import { getModel } from "@/lib/db/models";
-import { getVersion, loadSurrogate } from "@/lib/db/versions";
+import { loadSurrogate } from "@/lib/db/versions";
 import { thetaGridNrad } from "@/lib/optics/setup";
 import { termSignificance } from "@/lib/surrogate/significance";
 import { termLabel } from "@/lib/surrogate/terms";
@@ -31,9 +30,8 @@ function numberParam(value: string | undefined, fallback: number): number {
 
 export default async function CoefficientsPage({ params, searchParams }: { params: Params; searchParams: SearchParams }) {
   const [{ slug, version: raw }, query] = await Promise.all([params, searchParams]);
-  if (!/^[1-9]\d{0,8}$/.test(raw)) notFound();
-  const { actor } = await requirePageActor();
-  const [model, v] = await Promise.all([orNotFound(getModel(actor, slug)), orNotFound(getVersion(actor, slug, Number(raw)))]);
+  const { actor, version: v } = await requirePageVersion(slug, raw);
+  const model = await orNotFound(getModel(actor, slug));
   const { surrogate } = await loadSurrogate(actor, slug, v.version);
 
   // Defaults: the budget a pruned version was made for, else the validity limit; its jitter, else the demo's.
@@ -68,19 +66,7 @@ export default async function CoefficientsPage({ params, searchParams }: { param
   return (
     <div className="flex flex-col gap-6">
       <div>
-        <p className="text-xs text-muted">
-          <Link href="/" className={linkClass}>
-            Catalogue
-          </Link>{" "}
-          /{" "}
-          <Link href={`/models/${slug}`} className={`font-mono ${linkClass}`}>
-            {slug}
-          </Link>{" "}
-          /{" "}
-          <Link href={`/models/${slug}/versions/${v.version}`} className={linkClass}>
-            version {v.version}
-          </Link>
-        </p>
+        <ModelTrail slug={slug} version={v.version} />
         <PageHeading title={`${model.name} · version ${v.version} · coefficients`} />
         <p className="max-w-3xl text-sm text-muted">
           A version&apos;s map is <span className="font-mono">c(θ) = C(θ) + Σ A_i(θ) a_i + Σ B_ij(θ) a_i a_j</span> over the Zernike
