@@ -68,6 +68,9 @@ export const MapRaster = memo(function MapRaster({ m, size, values, colour }: { 
 export function ColourBar({ lo, hi, ramp, unit, height, left, top }: { lo: number; hi: number; ramp: readonly string[]; unit: string; height: number; left: number; top: number }) {
   const gradientId = `bar-${useId().replace(/[^a-zA-Z0-9_-]/g, "")}`;
   const scale = scaleLinear<number>({ domain: [lo, hi], range: [height, 0] });
+  // Enough significant digits that neighbouring ticks (about a fifth of the range apart) read differently.
+  const largest = Math.max(Math.abs(lo), Math.abs(hi));
+  const digits = hi > lo && largest > 0 ? Math.min(6, Math.max(2, Math.ceil(Math.log10(largest / ((hi - lo) / 5))) + 1)) : 2;
   return (
     <Group left={left} top={top} role="img" aria-label={`Colour scale from ${formatNumber(lo, 3)} to ${formatNumber(hi, 3)} ${unit}`} data-colour-bar={`${lo},${hi}`}>
       <defs>
@@ -81,7 +84,7 @@ export function ColourBar({ lo, hi, ramp, unit, height, left, top }: { lo: numbe
         {unit}
       </text>
       <rect width={COLOUR_BAR.width} height={height} fill={`url(#${gradientId})`} stroke="currentColor" strokeOpacity={0.5} />
-      <AxisRight left={COLOUR_BAR.width} scale={scale} numTicks={6} {...AXIS_STYLE} tickFormat={(v) => formatNumber(Number(v), 2)} tickLabelProps={{ ...AXIS_STYLE.tickLabelProps, dx: 2, dy: 3 }} />
+      <AxisRight left={COLOUR_BAR.width} scale={scale} numTicks={6} {...AXIS_STYLE} tickFormat={(v) => formatNumber(Number(v), digits)} tickLabelProps={{ ...AXIS_STYLE.tickLabelProps, dx: 2, dy: 3 }} />
     </Group>
   );
 }

@@ -13,7 +13,7 @@ import { pointerIn, PlotTooltip, usePlotTooltip } from "./plot-tooltip";
 /** Side of one pupil picture in px. */
 export const PUPIL_PLOT = 200;
 
-const MARGIN = { top: 18, left: 40, right: 14, bottom: 36 };
+const MARGIN = { top: 18, left: 48, right: 14, bottom: 36 };
 
 interface HoveredCell {
   ix: number;
@@ -125,7 +125,7 @@ export function PupilMapFigure({
                 <rect width={size} height={size} fill="none" stroke="currentColor" strokeOpacity={0.3} pointerEvents="none" />
               </Group>
               <AxisBottom top={MARGIN.top + size} left={MARGIN.left} scale={axis} tickValues={[-1, -0.5, 0, 0.5, 1]} {...AXIS_STYLE} tickLabelProps={{ ...AXIS_STYLE.tickLabelProps, textAnchor: "middle" }} label="x/R" labelOffset={6} />
-              <AxisLeft top={MARGIN.top} left={MARGIN.left} scale={axisUp} tickValues={[-1, -0.5, 0, 0.5, 1]} {...AXIS_STYLE} tickLabelProps={{ ...AXIS_STYLE.tickLabelProps, textAnchor: "end", dx: -2, dy: 3 }} label="y/R" labelOffset={14} />
+              <AxisLeft top={MARGIN.top} left={MARGIN.left} scale={axisUp} tickValues={[-1, -0.5, 0, 0.5, 1]} {...AXIS_STYLE} tickLabelProps={{ ...AXIS_STYLE.tickLabelProps, textAnchor: "end", dx: -2, dy: 3 }} label="y/R" labelOffset={22} />
             </Group>
           );
         })}

@@ -218,6 +218,12 @@ export async function loadRun(id: number, conn: Knex = db()): Promise<RunRecord 
   };
 }
 
+/** The spec of the run that made a version (its training or pruning run), or null for a version made otherwise. */
+export async function specOfVersionRun(versionId: number, conn: Knex = db()): Promise<Record<string, unknown> | null> {
+  const row: { spec: RunRow["spec"] } | undefined = await conn("model_versions").join("runs", "runs.id", "model_versions.run_id").select("runs.spec").where("model_versions.id", versionId).first();
+  return row ? fromJson<Record<string, unknown>>(row.spec) : null;
+}
+
 export async function appendRunLog(runId: number, message: string, level: RunLogLine["level"] = "info", worker: string | null = null, conn: Knex = db()): Promise<void> {
   await conn("run_log").insert({ run_id: runId, level, message: message.slice(0, 4000), worker });
 }

@@ -1,5 +1,6 @@
 import { appendRunLog, completeRun, loadRun, loadRunChunks, storeRunChunk, type RunRecord } from "../db/runs.ts";
 import type { ModelRecord } from "../db/models.ts";
+import { loadSampleSet } from "../db/generatingSets.ts";
 import { insertVersion, loadSurrogateById } from "../db/versions.ts";
 import { nollToAnsi } from "../optics/zernike.ts";
 import type { SampleSet } from "../surrogate/designs.ts";
@@ -8,7 +9,7 @@ import { SURROGATE_NOTICE, type SurrogateModel } from "../surrogate/model.ts";
 import { coefficientsSha256, encodeModel } from "../surrogate/modelFile.ts";
 import { addMonteCarloPeaks, emptyMonteCarlo, mergeMonteCarlo, MONTE_CARLO_CHUNK, monteCarloSamples, type MonteCarloSummary } from "../surrogate/requirements.ts";
 import { prunedVersionModel } from "../registry/pruning.ts";
-import type { ChunkJob, MonteCarloRunSpec, PruningRunSpec } from "./plan.ts";
+import { isUploaded, type ChunkJob, type MonteCarloRunSpec, type PruningRunSpec } from "./plan.ts";
 
 /** Peak |TTL| of many wavefronts (row-major S x J), pm/nrad: on a compute pool, or here. */
 export type PeakEvaluator = (model: SurrogateModel, coefficientsNm: Float64Array) => Promise<Float64Array>;
@@ -119,6 +120,8 @@ export async function finishMonteCarlo(run: RunRecord, worker: string, exact: Ex
     }
     return { linearLimitsNm, crossLimitsNm2 };
   };
+  // Runs queued before the shares were recorded have none.
+  const keyed = (values: number[] | undefined) => (values ? Object.fromEntries(values.map((v, i) => [keyOf(model, i), v])) : null);
   const uniform = limitsOf(spec.uniformLinearNm);
   const perTerm = limitsOf(spec.perTermLinearNm);
   const exactWorst = Math.max(0, ...exactPeaks.map((v) => v ?? 0));
@@ -132,7 +135,12 @@ export async function finishMonteCarlo(run: RunRecord, worker: string, exact: Ex
     linearLimitsNm: uniform.linearLimitsNm,
     crossLimitsNm2: uniform.crossLimitsNm2,
     boundPmPerNrad: spec.uniformBoundPmPerNrad,
-    perTerm: { ...perTerm, boundPmPerNrad: spec.perTermBoundPmPerNrad },
+    perTerm: {
+      ...perTerm,
+      boundPmPerNrad: spec.perTermBoundPmPerNrad,
+      couplingPmPerNradPerNm: keyed(spec.perTermCouplingPmPerNradPerNm),
+      sharePmPerNrad: keyed(spec.perTermSharePmPerNrad),
+    },
     zeroWfePeakPmPerNrad: spec.zeroWfePeakPmPerNrad,
     verified: {
       limits: spec.limits,
@@ -170,6 +178,8 @@ export async function finishMonteCarlo(run: RunRecord, worker: string, exact: Ex
 export async function finishPruning(run: RunRecord, model: ModelRecord, worker: string, validation: SampleSet | null): Promise<string> {
   const spec = run.spec as unknown as PruningRunSpec;
   const parent = await versionModel(spec.parentVersionId);
+  // An uploaded validation set is stored with its exact maps: nothing was propagated, it is read here.
+  if (spec.validationSet !== null && isUploaded(spec.validationSet)) validation = await loadSampleSet(model.id, spec.validationSet.generatingSetId, model.setup.farField.pointsPerAxis);
   const began = performance.now();
   const pruned = prunedVersionModel(parent, spec.prune, validation ?? undefined);
   const file = encodeModel(pruned);

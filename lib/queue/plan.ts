@@ -83,6 +83,9 @@ export interface MonteCarloRunSpec {
   perTermLinearNm: number[];
   uniformBoundPmPerNrad: number;
   perTermBoundPmPerNrad: number;
+  /** The per-term allocation's couplings (pm/nrad per nm) and shares of the TTL budget (pm/nrad), model Noll order. */
+  perTermCouplingPmPerNradPerNm: number[];
+  perTermSharePmPerNrad: number[];
   zeroWfePeakPmPerNrad: number;
   jobSamples: number;
 }

@@ -3,11 +3,11 @@ import { assertCan, type Actor } from "../access/actor.ts";
 import { recordAuditEvent } from "../db/audit.ts";
 import { db } from "../db/knex.ts";
 import { requireModel } from "../db/models.ts";
-import { appendRunLog, failRun, insertRun, runItem, type RunItem } from "../db/runs.ts";
+import { appendRunLog, failRun, insertRun, runItem, specOfVersionRun, type RunItem } from "../db/runs.ts";
 import { evaluationTarget } from "../db/versions.ts";
 import { NotFoundError } from "../errors.ts";
 import { enqueueTrainingRun } from "../queue/enqueue.ts";
-import { CHUNK_SAMPLES, type PruningRunSpec } from "../queue/plan.ts";
+import { CHUNK_SAMPLES, isUploaded, type PruningRunSpec, type StoredValidationSet } from "../queue/plan.ts";
 import type { SampleSet } from "../surrogate/designs.ts";
 import type { SurrogateModel } from "../surrogate/model.ts";
 import { pruneModel, type PruneOptions } from "../surrogate/significance.ts";
@@ -27,7 +27,8 @@ export function prunedVersionModel(parent: SurrogateModel, options: PruneOptions
 /**
  * Queue the pruning of a version (API.md `POST .../versions/{v}/prune`): a run of kind "pruning" whose chunks propagate
  * the parent's validation set exactly (regenerated from its seed) and whose last step stores the derived draft with its
- * parent recorded. A parent without a built-in validation set (an uploaded one, or none) is pruned without statistics.
+ * parent recorded. A parent validated on an uploaded set (stored in generating_sets, its exact maps with it) gives the
+ * draft statistics from that set, with nothing to propagate; a parent with no validation set is pruned without them.
  * @throws {ForbiddenError} without the train permission; {NotFoundError} for an unknown version; 503 when the queue is down
  */
 export async function createPruningRun(actor: Actor, slug: string, version: number, body: PruneBody, conn: Knex = db()): Promise<RunItem> {
@@ -36,15 +37,18 @@ export async function createPruningRun(actor: Actor, slug: string, version: numb
   const target = await evaluationTarget(slug, version, conn);
   if (!target) throw new NotFoundError(`Model "${slug}" has no version ${version}.`);
   const parent = await surrogateFor(target);
-  const validationSet = parent.provenance.validationSet;
+  const builtIn = parent.provenance.validationSet;
+  const validationSet: StoredValidationSet = builtIn
+    ? { size: builtIn.size, maxRmsNm: builtIn.maxRmsNm, seed: builtIn.seed }
+    : await uploadedValidationSetOf(target.versionId, conn);
   const spec: PruningRunSpec = {
     parentVersionId: target.versionId,
     parentVersion: target.version,
     prune: { budgetRmsNm: body.budgetRmsNm, jitterNrad: body.jitterNrad, thresholdPm: body.thresholdPm },
-    validationSet: validationSet ? { size: validationSet.size, maxRmsNm: validationSet.maxRmsNm, seed: validationSet.seed } : null,
+    validationSet,
     chunkSamples: CHUNK_SAMPLES,
     generatingSamples: 0,
-    validationSamples: validationSet ? validationSet.size : 0,
+    validationSamples: validationSet && !isUploaded(validationSet) ? validationSet.size : 0,
   };
   const runId = await insertRun(
     { kind: "pruning", modelId: model.id, sourceVersionId: target.versionId, spec: spec as unknown as Record<string, unknown>, total: spec.validationSamples, createdBy: actor.userId },
@@ -53,7 +57,11 @@ export async function createPruningRun(actor: Actor, slug: string, version: numb
   await appendRunLog(
     runId,
     `queued by ${actor.email}: prune version ${version} (${parent.terms.length} terms) for ${body.budgetRmsNm} nm RMS, ${body.jitterNrad} nrad jitter, threshold ${body.thresholdPm} pm; ` +
-      (validationSet ? `${validationSet.size} validation samples propagated exactly for the statistics` : "the parent has no built-in validation set: no statistics, no seen error"),
+      (validationSet === null
+        ? "the parent has no validation set: no statistics, no seen error"
+        : isUploaded(validationSet)
+          ? `the parent's uploaded validation set (generating set ${validationSet.generatingSetId}) gives the statistics`
+          : `${validationSet.size} validation samples propagated exactly for the statistics`),
     "info",
     null,
     conn,
@@ -66,4 +74,14 @@ export async function createPruningRun(actor: Actor, slug: string, version: numb
     throw error;
   }
   return runItem(runId, conn);
+}
+
+/**
+ * The uploaded validation set a version was validated on, as its run recorded it (a training run's spec, or a pruning
+ * run's, which passes its parent's on), or null when it had none.
+ */
+async function uploadedValidationSetOf(versionId: number, conn: Knex): Promise<StoredValidationSet> {
+  const spec = await specOfVersionRun(versionId, conn);
+  const set = (spec?.validationSet ?? null) as StoredValidationSet;
+  return set !== null && isUploaded(set) ? { design: "uploaded", generatingSetId: set.generatingSetId } : null;
 }

@@ -41,6 +41,8 @@ export async function createRequirementsRun(actor: Actor, slug: string, version:
     perTermLinearNm: Array.from(requirements.perTerm.linearNm),
     uniformBoundPmPerNrad: requirements.uniform.boundPmPerNrad,
     perTermBoundPmPerNrad: requirements.perTerm.boundPmPerNrad,
+    perTermCouplingPmPerNradPerNm: Array.from(requirements.perTerm.couplingPmPerNradPerNm),
+    perTermSharePmPerNrad: Array.from(requirements.perTerm.sharePmPerNrad),
     zeroWfePeakPmPerNrad: requirements.zeroWfePeakPmPerNrad,
     jobSamples: MONTE_CARLO_JOB_SAMPLES,
   };

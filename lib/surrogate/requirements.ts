@@ -23,8 +23,13 @@ export interface Requirements {
   budgetRmsNm: number;
   /** The headline: one limit for every linear term and one for every cross term (the same value within each kind). */
   uniform: TermLimits;
-  /** Per-term limits: the budget shared by coupling, each term allowed the same TTL (its limit ~ 1 / its coupling). */
-  perTerm: TermLimits;
+  /** Per-term limits: the TTL budget shared among the terms in proportion to each term's coupling (see {@link requirementLimits}). */
+  perTerm: TermLimits & {
+    /** Each term's coupling g_i: its largest TTL per nm within the WFE budget, pm/nrad per nm (model Noll order). */
+    couplingPmPerNradPerNm: Float64Array;
+    /** Each term's share of the TTL budget, `(tau - max |c0|) g_i / sum_k g_k`, pm/nrad. */
+    sharePmPerNrad: Float64Array;
+  };
   /** Largest |c0| over the map (the model's TTL at zero wavefront error), pm/nrad. */
   zeroWfePeakPmPerNrad: number;
 }
@@ -89,11 +94,17 @@ function limitsFor(model: SurrogateModel, weights: Float64Array, ttlBudget: numb
  * wavefront inside the limits, whatever its total RMS. The bound is taken node by node from the maps, not from
  * per-term maxima, so it is as tight as this kind of bound gets.
  * - `uniform` (the headline): `w_i = 1`, one limit for every linear term and `K = L^2` for every cross term.
- *   Sharing the budget among the terms in proportion to each term's coupling `g_i` (share `tau g_i / sum g`,
- *   limit share / g_i) gives the same limit for every term: this is that allocation, made exact per node.
- * - `perTerm`: `w_i = 1 / g_i` with `g_i = max_p |A_i(p)| + r max_p sum_j |b_ij(p)|` (the term's largest TTL per nm
- *   within the budget): every term may add the same TTL, so strongly coupled terms get tight limits and weakly
- *   coupled ones loose limits. A term with no coupling at all gets the WFE budget r.
+ * - `perTerm`: the TTL budget shared among the terms in proportion to each term's coupling. Term i's coupling is its
+ *   largest TTL per nm within the WFE budget, `g_i = a_i + r q_i` with `a_i = max_p |A_i(p)|` and
+ *   `q_i = max_p sum_j |b_ij(p)|` (its square term and its products); its share is
+ *   `tau_i = (tau - max_p |c0_p|) g_i / sum_k g_k`, so the terms that couple most take the largest parts of the
+ *   budget. Its own limit is the amplitude at which it uses its share with its products at the same amplitude,
+ *   `a_i l_i + q_i l_i^2 = tau_i`, i.e. `l_i = 2 tau_i / (a_i + sqrt(a_i^2 + 4 q_i tau_i))`; then `w_i = l_i`
+ *   and the common scale s above makes the guarantee exact node by node (one factor for every term, so the shares
+ *   stay in proportion to the couplings). Where the TTL is linear in the terms (q = 0), shares in proportion to
+ *   coupling mean `l_i = (tau - max |c0|) / sum_k a_k` for every term: the same limit as the headline; the limits
+ *   differ where second-order terms matter (a term coupling through its squares and products reaches its share at a
+ *   larger amplitude). A term with no coupling at all gets the WFE budget r.
  *
  * @param ttlBudgetPmPerNrad tau, pm/nrad
  * @param budgetRmsNm r, nm
@@ -135,17 +146,25 @@ export function requirementLimits(model: SurrogateModel, ttlBudgetPmPerNrad: num
     for (let p = 0; p < P; p++) cross = Math.max(cross, crossRows[i * P + p]);
     coupling[i] = linearCoupling[i] + budgetRmsNm * cross;
   }
-  const positive = Array.from(coupling).filter((g) => g > 0);
-  const reference = positive.length > 0 ? Math.max(...positive) : 1;
-  // Weights normalised so that the strongest-coupled term has weight 1; a term without coupling (all its
-  // coefficients zero) adds nothing anywhere and gets the WFE budget.
-  const perTermWeights = coupling.map((g) => (g > 0 ? reference / g : 0));
+  let couplingSum = 0;
+  for (let i = 0; i < J; i++) couplingSum += coupling[i];
+  const room = ttlBudgetPmPerNrad - zeroPeak;
+  const share = new Float64Array(J);
+  // Each term's own limit for its share: the positive root of q l^2 + a l = share (a term without coupling, all its
+  // coefficients zero, adds nothing anywhere and gets the WFE budget).
+  const ownLimit = new Float64Array(J);
+  for (let i = 0; i < J; i++) {
+    if (!(coupling[i] > 0)) continue;
+    share[i] = (room * coupling[i]) / couplingSum;
+    const q = (coupling[i] - linearCoupling[i]) / budgetRmsNm;
+    ownLimit[i] = (2 * share[i]) / (linearCoupling[i] + Math.sqrt(linearCoupling[i] ** 2 + 4 * q * share[i]));
+  }
   const uncoupled = Array.from(coupling, (g) => !(g > 0));
   return {
     ttlBudgetPmPerNrad,
     budgetRmsNm,
     uniform: limitsFor(model, new Float64Array(J).fill(1), ttlBudgetPmPerNrad, budgetRmsNm),
-    perTerm: limitsFor(model, perTermWeights, ttlBudgetPmPerNrad, budgetRmsNm, uncoupled),
+    perTerm: { ...limitsFor(model, ownLimit, ttlBudgetPmPerNrad, budgetRmsNm, uncoupled), couplingPmPerNradPerNm: coupling, sharePmPerNrad: share },
     zeroWfePeakPmPerNrad: zeroPeak,
   };
 }

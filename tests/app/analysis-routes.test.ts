@@ -220,6 +220,14 @@ describe("requirements and pruning on the queue", () => {
     expect(Object.keys(result.linearLimitsNm)).toHaveLength(33);
     expect(Object.keys(result.crossLimitsNm2)).toHaveLength((33 * 34) / 2);
     expect(result.boundPmPerNrad).toBeLessThanOrEqual(0.1);
+    // Per-term limits: the shares of the TTL budget add up to what the model leaves above its TTL at zero WFE, each
+    // in proportion to its term's coupling (requirementLimits' definition), and their bound holds too.
+    const shares = Object.values(result.perTerm.sharePmPerNrad as Record<string, number>);
+    expect(shares.reduce((s, v) => s + v, 0)).toBeCloseTo(0.1 - result.zeroWfePeakPmPerNrad, 12);
+    const couplings = result.perTerm.couplingPmPerNradPerNm as Record<string, number>;
+    const couplingSum = Object.values(couplings).reduce((s, v) => s + v, 0);
+    for (const [k, share] of Object.entries(result.perTerm.sharePmPerNrad as Record<string, number>)) expect(share).toBeCloseTo(((0.1 - result.zeroWfePeakPmPerNrad) * couplings[k]) / couplingSum, 12);
+    expect(result.perTerm.boundPmPerNrad).toBeLessThanOrEqual(0.1);
     expect(result.verified.samples).toBe(4096);
     expect(result.verified.worstPmPerNrad).toBeLessThanOrEqual(0.1);
     expect(result.verified.budgetFractionUsed).toBeCloseTo(result.verified.worstPmPerNrad / 0.1, 12);

@@ -104,6 +104,14 @@ describe("the coefficient maps and the term ranking", () => {
   it("says what was wrong with a budget or a term, and shows the defaults instead", async () => {
     const bad = text((await viewer.get("/models/velora-transmit/versions/2/terms?budget=-3&term=Z99").expect(200)).text);
     expect(bad).toContain("budgetRmsNm must be a finite number > 0; showing the ranking for");
+    // The default budget is the validity limit rounded down to 0.1 nm (the demo's is a little under 35 nm), never a
+    // raw float in the form.
+    const { surrogate } = await loadSurrogate(await actorFor("viewer@velora.test"), "velora-transmit", 2);
+    const shown = Math.floor(surrogate.validity.maxTotalRmsNm * 10) / 10;
+    expect(bad).toContain(`showing the ranking for ${shown} nm RMS`);
+    const plain = text((await viewer.get("/models/velora-transmit/versions/2/terms").expect(200)).text);
+    expect(plain).toMatch(new RegExp(`<input[^>]*name="budget"[^>]*value="${shown}"`));
+    expect(plain).not.toContain(`value="${surrogate.validity.maxTotalRmsNm}"`);
     expect(bad).toContain("This version has no term Z99; showing the constant term.");
   });
 

@@ -14,8 +14,10 @@ import { thetaGridNrad } from "@/lib/optics/setup";
 import { runTtlTask } from "@/lib/parallel/ttlTask";
 import { closeQueueClients } from "@/lib/queue/enqueue";
 import type { WorkerHandle } from "@/lib/queue/worker";
+import { createPruningRun } from "@/lib/registry/pruning";
 import { createTrainingRun } from "@/lib/registry/training";
 import { randomDesign, type SampleSet } from "@/lib/surrogate/designs";
+import { evaluateBatch } from "@/lib/surrogate/evaluate";
 import { trainSurrogate } from "@/lib/surrogate/train";
 import { SOFTWARE_VERSION } from "@/lib/version";
 import { actorFor, createTestModel, inProcessWorker, SMALL_SETUP, SMALL_ZERNIKE, waitForRun } from "../helpers/registry";
@@ -114,6 +116,43 @@ describe("uploaded generating sets", () => {
     );
     expect(Array.from(surrogate.coefficients)).toEqual(Array.from(direct.model.coefficients));
     expect(surrogate.statistics).toEqual(direct.model.statistics);
+  });
+
+  it("prune a version validated on an uploaded set into a draft with statistics from that set", async () => {
+    const slug = await createTestModel(modeller);
+    const validation = exactSet(40, 35);
+    const uploaded = await createGeneratingSet(modeller, slug, { fileName: "check.npz", bytes: writeNpz(members(validation)) });
+    const training = await createTrainingRun(modeller, slug, {
+      order: 2,
+      generatingSet: { design: "random", size: 60, maxRmsNm: 20, seed: 3 },
+      validationSet: { design: "uploaded", generatingSetId: uploaded.id },
+    });
+    expect((await waitForRun(modeller, training.id)).run.state).toBe("succeeded");
+    const queued = await createPruningRun(modeller, slug, 1, { budgetRmsNm: 20, jitterNrad: 8, thresholdPm: 0.05 });
+    // Nothing to propagate: the uploaded set holds its exact maps.
+    expect(queued.progress.total).toBe(0);
+    const { run } = await waitForRun(modeller, queued.id);
+    expect(run.state).toBe("succeeded");
+    const { surrogate: parent } = await loadSurrogate(modeller, slug, 1);
+    const { surrogate: pruned } = await loadSurrogate(modeller, slug, run.version!);
+    expect(pruned.terms.length).toBeLessThan(parent.terms.length);
+    expect(pruned.statistics).not.toBeNull();
+    // The draft's largest error, checked against the exact maps propagated here (runTtlTask, PHYSICS.md sections 2-3)
+    // for the uploaded wavefronts: max over samples, nodes and axes of |pruned model - exact|.
+    const modelMaps = evaluateBatch(pruned, validation.coefficientsNm);
+    const nodes = M * M;
+    let largest = 0;
+    for (let s = 0; s < validation.count; s++) {
+      for (let n = 0; n < nodes; n++) {
+        largest = Math.max(largest, Math.abs(modelMaps[s * 2 * nodes + n] - validation.x[s * nodes + n]), Math.abs(modelMaps[s * 2 * nodes + nodes + n] - validation.y[s * nodes + n]));
+      }
+    }
+    // 1e-12 relative: the same sums in another order.
+    expect(pruned.statistics!.overall.maxAbsErrorPmPerNrad).toBeCloseTo(largest, 12);
+    expect(pruned.statistics!.overall.maxAbsErrorPmPerNrad).not.toBe(parent.statistics!.overall.maxAbsErrorPmPerNrad);
+    // The bound and what the dropped terms were seen to add, on the uploaded wavefronts.
+    expect(pruned.pruning!.droppedTtlSeenPmPerNrad).not.toBeNull();
+    expect(pruned.pruning!.droppedTtlSeenPmPerNrad!).toBeLessThanOrEqual(pruned.pruning!.droppedTtlBoundPmPerNrad);
   });
 
   it("train into a failed run that says why, and no version, when the set cannot determine the model", async () => {

@@ -52,6 +52,16 @@ describe("the heatmap figure", () => {
     expect(html).toContain('data-plot="heatmap"');
   });
 
+  it("labels the colour bar's ticks with enough digits to tell them apart over a narrow range", () => {
+    const html = renderToStaticMarkup(
+      createElement(HeatmapFigure, { title: "t", kind: "magnitude", thetaNrad: grid(3), domain: [1.08, 1.2], maps: [{ label: "c", title: "c", values: [1.08, 1.1, 1.12, 1.14, 1.16, 1.18, 1.2, 1.1, 1.1] }] }),
+    );
+    const bar = html.slice(html.indexOf("data-colour-bar"));
+    const ticks = [...bar.matchAll(/<text[^>]*>(?:<tspan[^>]*>)?([0-9.]+)</g)].map((t) => t[1]);
+    expect(ticks.length).toBeGreaterThan(3);
+    expect(new Set(ticks).size).toBe(ticks.length);
+  });
+
   it("marks far-field nulls as undefined rather than a number", () => {
     const html = figure("signed", 3, [null, 1, 1, 1, 1, 1, 1, 1, 1], [1, 1, 1, 1, 1, 1, 1, 1, 1]);
     expect(html).toContain("θy -60 nrad: undefined (far-field null)");

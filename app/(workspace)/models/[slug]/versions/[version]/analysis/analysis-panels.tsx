@@ -101,8 +101,29 @@ function CoefficientBars({ title, coefficients, unit = "nm", testId }: { title: 
       rankLabel="term"
       log={false}
       testId={testId}
+      note={
+        items.length > 0 && (
+          <p className="text-xs text-muted">
+            Largest: {Object.entries(coefficients)
+              .filter(([, v]) => v !== 0)
+              .sort((a, b) => Math.abs(b[1]) - Math.abs(a[1]))
+              .slice(0, 6)
+              .map(([k, v]) => `Z${k} ${v >= 0 ? "+" : "−"}${formatNumber(Math.abs(v), 3)}`)
+              .join(", ")}
+            {items.length > 6 ? ", …" : ""} {unit}
+          </p>
+        )
+      }
     />
   );
+}
+
+/** A colour range spanning the values of some maps (non-finite skipped), so that small variations stay visible. */
+function spanOf(...maps: (readonly (number | null)[])[]): [number, number] {
+  let lo = Infinity;
+  let hi = -Infinity;
+  for (const map of maps) for (const v of map) if (v !== null && Number.isFinite(v)) [lo, hi] = [Math.min(lo, v), Math.max(hi, v)];
+  return lo < hi ? [lo, hi] : [Math.min(0, lo), Math.max(lo, 0) + 1];
 }
 
 /** Cells per side of the pupil pictures of model wavefronts (a maximiser, a mode). */
@@ -204,7 +225,7 @@ function WorstCasePanel({ base, slug, version, defaults }: Shared & { defaults: 
         <>
           <p className="text-sm" data-testid="worst-summary">
             Worst |TTL| {formatNumber(w.worst.valuePmPerNrad, 4)} pm/nrad at θ = ({formatNumber(w.worst.thetaXNrad, 3)}, {formatNumber(w.worst.thetaYNrad, 3)}) nrad on c<sub>{w.worst.axis}</sub>
-            {w.worst.lengthNoisePm !== null && <> ; length noise {formatNumber(w.worst.lengthNoisePm, 4)} pm</>}; simple bound there {formatNumber(w.worst.boundPmPerNrad, 4)} pm/nrad, largest bound {formatNumber(w.peakBoundPmPerNrad, 4)} pm/nrad. Solved as {w.worst.solution} ({w.hardCases} hard cases) in {w.computeMs} ms. Version {w.version}, SHA-256 {String(w.coefficientsSha256).slice(0, 12)}…
+            {w.worst.lengthNoisePm !== null && <>; length noise {formatNumber(w.worst.lengthNoisePm, 4)} pm</>}; simple bound there {formatNumber(w.worst.boundPmPerNrad, 4)} pm/nrad, largest bound {formatNumber(w.peakBoundPmPerNrad, 4)} pm/nrad. Solved as {w.worst.solution} ({w.hardCases} hard cases) in {w.computeMs} ms. Version {w.version}, SHA-256 {String(w.coefficientsSha256).slice(0, 12)}…
           </p>
           {w.validity.warnings.length > 0 && <p className="text-xs text-caution">{w.validity.warnings.join(" ")}</p>}
           <HeatmapFigure
@@ -216,6 +237,8 @@ function WorstCasePanel({ base, slug, version, defaults }: Shared & { defaults: 
               { label: "|c_y| max", title: "c_y: exact", values: flat(w.exactPmPerNrad.y), marker: w.worst.axis === "y" ? marker : null },
             ]}
             quantity="largest |TTL| within the budget"
+            domain={spanOf(flat(w.exactPmPerNrad.x), flat(w.exactPmPerNrad.y))}
+            note={<p className="text-xs text-muted">The colour bar spans the maps&apos; own range (not from zero), so the variation over the map shows.</p>}
             testId="worst-exact-maps"
           />
           <HeatmapFigure
@@ -226,6 +249,7 @@ function WorstCasePanel({ base, slug, version, defaults }: Shared & { defaults: 
               { label: "bound c_x", title: "c_x: bound", values: flat(w.boundPmPerNrad.x) },
               { label: "bound c_y", title: "c_y: bound", values: flat(w.boundPmPerNrad.y) },
             ]}
+            domain={spanOf(flat(w.boundPmPerNrad.x), flat(w.boundPmPerNrad.y))}
             testId="worst-bound-maps"
           />
           <div className="flex flex-wrap items-start gap-4">
@@ -341,9 +365,19 @@ function RequirementsPanel({ base, slug, version, defaults }: Shared & { default
             Every |a<sub>i</sub>| ≤ {formatNumber(Object.values(result.linearLimitsNm as Record<string, number>)[0], 4)} nm (and so every |a<sub>i</sub>a<sub>j</sub>| ≤{" "}
             {formatNumber(Object.values(result.crossLimitsNm2 as Record<string, number>)[0], 4)} nm²) keeps |TTL| ≤ {formatNumber(result.boundPmPerNrad, 4)} pm/nrad everywhere on the map (budget {result.ttlBudgetPmPerNrad} pm/nrad). Monte Carlo of {result.verified.samples.toLocaleString()} wavefronts inside the {result.verified.limits} limits: worst {formatNumber(result.verified.worstPmPerNrad, 4)} pm/nrad on the model ({formatNumber(100 * result.verified.budgetFractionUsed, 3)} % of the budget); the {result.verified.worstSamples.length} worst propagated exactly: worst {formatNumber(result.verified.exactWorstPmPerNrad, 4)} pm/nrad, {result.verified.exactOverBudget} above the budget.
           </p>
+          <p className="text-xs text-muted" data-testid="requirements-per-term-note">
+            Per-term limits share the TTL budget among the terms in proportion to each term&apos;s coupling g (its largest TTL per nm within {result.budgetRmsNm} nm RMS): a term
+            takes (budget − TTL at zero WFE) · g / Σg and its limit is the amplitude at which it uses that share; one common factor then makes the bound hold at every node
+            ({formatNumber(result.perTerm.boundPmPerNrad, 4)} pm/nrad). Where the TTL is linear in the terms this gives every term the same limit as the headline; the
+            limits differ where square and product terms matter.
+          </p>
           <RankedBarChart
-            title={`Per-term limits, budget shared by coupling · ${slug} v${version}`}
-            items={Object.entries(result.perTerm.linearLimitsNm as Record<string, number>).map(([k, v]) => ({ label: `Z${k}`, value: v, group: "limit" }))}
+            title={`Per-term limits, TTL budget shared in proportion to coupling · ${slug} v${version}`}
+            items={Object.entries(result.perTerm.linearLimitsNm as Record<string, number>).map(([k, v]) => ({
+              label: result.perTerm.sharePmPerNrad ? `Z${k} (share ${formatNumber(result.perTerm.sharePmPerNrad[k], 2)} pm/nrad)` : `Z${k}`,
+              value: v,
+              group: "limit",
+            }))}
             groups={[{ key: "limit", label: "limit", colour: "rgb(var(--sp-accent))" }]}
             valueLabel="limit"
             unit="nm"
@@ -364,8 +398,14 @@ function RequirementsPanel({ base, slug, version, defaults }: Shared & { default
             ]}
             valueLabel="wavefronts"
             unit="count"
-            rankLabel="peak bin (pm/nrad)"
+            rankLabel="bin"
             log={false}
+            note={
+              <p className="text-xs text-muted">
+                Bin k holds the wavefronts whose peak lies in [(k − 1) w, k w) with w = {formatNumber(result.verified.histogram.binWidthPmPerNrad, 3)} pm/nrad (1.25 × budget / 40); the
+                last bin holds every peak above 1.25 × the budget; bars right of the budget ({result.ttlBudgetPmPerNrad} pm/nrad, bin {Math.round(result.ttlBudgetPmPerNrad / result.verified.histogram.binWidthPmPerNrad)}) are marked.
+              </p>
+            }
             testId="requirements-histogram"
           />
           <table className="text-xs" data-testid="requirements-worst">
@@ -434,16 +474,31 @@ function ModesPanel({ base, slug, version, wavefront }: Shared) {
               testId="modes-pupil"
             />
           )}
-          <HeatmapFigure
-            title="Linear TTL c_x of 1 nm of the leading and the trailing mode"
-            kind="signed"
-            thetaNrad={m.thetaNrad}
-            maps={[
-              { label: "mode 1", title: `mode 1 (σ ${formatNumber(modes[0].singularValue, 3)})`, values: flat(modes[0].ttlPmPerNrad.x) },
-              { label: `mode ${modes.length}`, title: `mode ${modes.length} (σ ${formatNumber(modes[modes.length - 1].singularValue, 3)})`, values: flat(modes[modes.length - 1].ttlPmPerNrad.x) },
-            ]}
-            testId="modes-maps"
-          />
+          <div className="flex flex-wrap items-start gap-4" data-testid="modes-maps">
+            {[
+              { k: 1, mode: first },
+              { k: modes.length, mode: last },
+            ].map(({ k, mode }) => (
+              <HeatmapFigure
+                key={k}
+                title={`Linear TTL of 1 nm of mode ${k} (σ ${formatNumber(mode.singularValue, 3)}) · ${slug} v${version}`}
+                kind="signed"
+                thetaNrad={m.thetaNrad}
+                maps={[
+                  { label: `c_x`, title: "c_x", column: `mode_${k}_c_x`, values: flat(mode.ttlPmPerNrad.x) },
+                  { label: `c_y`, title: "c_y", column: `mode_${k}_c_y`, values: flat(mode.ttlPmPerNrad.y) },
+                ]}
+                size={180}
+                note={
+                  k > 1 && mode.singularValue < 1e-9 * first.singularValue ? (
+                    <p className="max-w-md text-xs text-muted">
+                      σ is below 10⁻⁹ of the leading mode&apos;s: this combination does not couple on this model, and its map is rounding.
+                    </p>
+                  ) : undefined
+                }
+              />
+            ))}
+          </div>
           <CoefficientBars title="Leading mode: weights of the terms" coefficients={modes[0].coefficientsNm} unit="per nm" />
           {modes[0].projection && (
             <RankedBarChart

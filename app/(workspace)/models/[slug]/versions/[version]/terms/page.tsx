@@ -34,8 +34,10 @@ export default async function CoefficientsPage({ params, searchParams }: { param
   const model = await orNotFound(getModel(actor, slug));
   const { surrogate } = await loadSurrogate(actor, slug, v.version);
 
-  // Defaults: the budget a pruned version was made for, else the validity limit; its jitter, else the demo's.
-  const defaults = { budgetRmsNm: v.pruning?.budgetRmsNm ?? v.validity.maxTotalRmsNm, jitterNrad: v.pruning?.jitterNrad ?? VELORA_JITTER_NRAD };
+  // Defaults: the budget a pruned version was made for, else the validity limit (rounded down to 0.1 nm, so the form
+  // shows a number a person would type and the budget stays inside the validity range); its jitter, else the demo's.
+  const validityBudgetNm = Math.floor(v.validity.maxTotalRmsNm * 10) / 10 || v.validity.maxTotalRmsNm;
+  const defaults = { budgetRmsNm: v.pruning?.budgetRmsNm ?? validityBudgetNm, jitterNrad: v.pruning?.jitterNrad ?? VELORA_JITTER_NRAD };
   const asked = { budgetRmsNm: numberParam(one(query.budget), defaults.budgetRmsNm), jitterNrad: numberParam(one(query.jitter), defaults.jitterNrad) };
   let options = asked;
   let optionsError: string | null = null;
