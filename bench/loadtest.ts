@@ -175,8 +175,14 @@ async function main(): Promise<void> {
     await response.arrayBuffer();
     times.push(performance.now() - t);
   }
+  const first1000 = times[0];
   const best1000 = Math.min(...times);
-  report("1,000 wavefronts as summary", `${fmt(best1000)} ms best of 5 (median ${fmt(times.sort((a, b) => a - b)[2])})`, "< 1000 ms", best1000 < 1000);
+  report(
+    "1,000 wavefronts as summary",
+    `${fmt(best1000)} ms best of 5 (median ${fmt([...times].sort((a, b) => a - b)[2])}, first ${fmt(first1000)})`,
+    "< 1000 ms",
+    first1000 < 1000 && best1000 < 1000,
+  );
 
   // Single-offset requests, one at a time, while a 10,000-wavefront request runs beside them.
   const alone: number[] = [];

@@ -283,7 +283,10 @@ async function main(): Promise<void> {
   sh("bash", ["db/mariadb.sh", "start", "soak"], "starting MariaDB");
   sh("bash", ["db/redis.sh", "start", "soak"], "starting Redis");
   rootSql(`DROP DATABASE IF EXISTS \`${database}\`; CREATE DATABASE \`${database}\` CHARACTER SET utf8mb4 COLLATE utf8mb4_unicode_ci;`);
-  spawnSync("redis-cli", ["-p", redisPort, "flushall"], { stdio: "ignore" });
+  // An empty queue: jobs left by an earlier soak would carry the same ids as this one's runs (run-<id>-...) and be
+  // taken for them. The answer is checked: Redis answers an error (and redis-cli exits 0) while it loads its data.
+  const flushed = spawnSync("redis-cli", ["-p", redisPort, "flushall"], { encoding: "utf8" });
+  if (flushed.stdout.trim() !== "OK") throw new Error(`emptying the soak's Redis failed: ${(flushed.stdout + flushed.stderr).trim()}`);
   sh("node", ["--import", "tsx", "node_modules/knex/bin/cli.js", "--knexfile", "knexfile.ts", "migrate:latest"], "migrating");
   sh("node", ["--import", "tsx", "node_modules/knex/bin/cli.js", "--knexfile", "knexfile.ts", "seed:run"], "seeding");
   sh("bash", ["-c", "source scripts/common.sh && build_if_needed"], "next build");

@@ -25,6 +25,8 @@ ensure_installed() {
   log "installed $(redis-server --version | head -n 1)"
 }
 
+answers_pong() { [[ "$(redis-cli -h 127.0.0.1 -p "$port" ping 2>/dev/null)" == "PONG" ]]; }
+
 start() {
   require_port
   already_running && return
@@ -36,7 +38,9 @@ start() {
   redis-server --bind 127.0.0.1 --port "$port" --dir "$dir" --daemonize yes --pidfile "$pid_file" \
     --appendonly yes --save '' --logfile "$dir/redis.log" --protected-mode yes 9>&- \
     || die "redis-server did not start (see $dir/redis.log)"
-  wait_until 200 "$dir/redis.log" redis-cli -h 127.0.0.1 -p "$port" ping || die "server did not answer within 20 s (see $dir/redis.log)"
+  # PONG, not just an answer: while it loads the append-only file Redis answers every command with a LOADING error
+  # (and redis-cli still exits 0), so a FLUSHALL or a queue's first command right after the start would fail.
+  wait_until 300 "$dir/redis.log" answers_pong || die "server did not answer PONG within 30 s (see $dir/redis.log)"
   started
 }
 

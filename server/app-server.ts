@@ -6,7 +6,8 @@ import { getConfig } from "../lib/config/index.ts";
 import { databaseReachable, warmPool } from "../lib/db/knex.ts";
 import { releasedEvaluationTargets } from "../lib/db/versions.ts";
 import { warmRateLimiter } from "../lib/api/rateLimit.ts";
-import { warmModelCache } from "../lib/registry/evaluate.ts";
+import { warmComputePool, warmModelCache } from "../lib/registry/evaluate.ts";
+import { serverComputePool } from "../lib/registry/serverPool.ts";
 import { directRoute } from "./direct-routes.ts";
 import { answerDatabaseUnreachable, isPageRequest } from "./unavailable-page.ts";
 
@@ -17,6 +18,8 @@ export interface AppServerOptions {
   /** 0 for a free port. */
   port: number;
   quiet?: boolean;
+  /** Start the worker pool for large batches at once (the production server) rather than on the first batch. */
+  startComputePool?: boolean;
   /** Proxies trusted in front of the server (default TRUSTED_PROXY_HOPS; see lib/auth/address.ts). */
   trustedProxyHops?: number;
 }
@@ -43,7 +46,11 @@ export async function startAppServer(options: AppServerOptions): Promise<Running
   const pool = await warmPool();
   if (!options.quiet && pool.opened < pool.wanted) console.error(`[stillpoint] database: ${pool.opened} of ${pool.wanted} connections opened at start`);
   warmRateLimiter();
-  await warmModelCache(() => releasedEvaluationTargets(), options.quiet ? () => {} : console.log);
+  const log = options.quiet ? () => {} : console.log;
+  const models = await warmModelCache(() => releasedEvaluationTargets(), log);
+  // The worker pool for large batches starts in the background: its threads take seconds, and nothing but a batch
+  // needs them (one that arrives first waits for the rest of the start).
+  if (options.startComputePool) void warmComputePool(models, serverComputePool(), log);
   const handle = app.getRequestHandler();
   const trustedHops = options.trustedProxyHops ?? getConfig().trustedProxyHops;
   // A page reads the database from its first line (the session check); with the database unreachable it answers 503

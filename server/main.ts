@@ -11,7 +11,7 @@ if (!Number.isInteger(port) || port < 0 || port > 65535) {
 // What `next start` does: React and Next load their production builds.
 (process.env as Record<string, string>).NODE_ENV = "production";
 const { startAppServer } = await import("./app-server.ts");
-const running = await startAppServer({ dir: fileURLToPath(new URL("..", import.meta.url)), hostname: values.hostname!, port });
+const running = await startAppServer({ dir: fileURLToPath(new URL("..", import.meta.url)), hostname: values.hostname!, port, startComputePool: true });
 console.error(`[stillpoint] listening on http://${values.hostname}:${running.port}`);
 let stopping = false;
 for (const signal of ["SIGTERM", "SIGINT"] as const) {

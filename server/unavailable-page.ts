@@ -39,10 +39,13 @@ export function answerDatabaseUnreachable(req: IncomingMessage, res: ServerRespo
   h1 { margin: 0 0 0.5rem; font-size: 1rem; color: rgb(var(--fault)); }
   p { margin: 0.5rem 0 0; }
   .muted { color: rgb(var(--muted)); font-size: 0.8125rem; }
+  .mark { margin: 0 0 0.75rem; font: 0.8125rem ui-monospace, monospace; }
+  .mark span { color: rgb(var(--fault)); }
 </style>
 </head>
 <body>
 <main role="alert" data-testid="database-unreachable">
+<p class="mark">stillpoint<span>·</span></p>
 <h1>Registry unavailable</h1>
 <p>${DATABASE_UNREACHABLE_MESSAGE}</p>
 <p class="muted">This page reloads itself in ${DEPENDENCY_RETRY_AFTER_SECONDS} seconds.</p>

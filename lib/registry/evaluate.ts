@@ -253,7 +253,8 @@ export function answerStream(answer: EvaluationAnswer): ReadableStream<Uint8Arra
  * evaluation path compiled (kernels, validation, interpolation, JSON). Failures are logged, never fatal: requests
  * load on demand.
  */
-export async function warmModelCache(listReleased: () => Promise<EvaluationTarget[]>, log: (line: string) => void = console.log): Promise<void> {
+export async function warmModelCache(listReleased: () => Promise<EvaluationTarget[]>, log: (line: string) => void = console.log): Promise<SurrogateModel[]> {
+  const models: SurrogateModel[] = [];
   try {
     const began = performance.now();
     let loaded = 0;
@@ -269,10 +270,32 @@ export async function warmModelCache(listReleased: () => Promise<EvaluationTarge
         });
         JSON.stringify(await evaluateOnModel(model, body, "warm-up", null));
       }
+      models.push(model);
       loaded++;
     }
     if (loaded > 0) log(`[stillpoint] ${loaded} released model versions decoded and evaluated once in ${Math.round(performance.now() - began)} ms`);
   } catch (error) {
     log(`[stillpoint] could not warm the model cache: ${(error as Error).message}`);
+  }
+  return models;
+}
+
+/**
+ * Start the worker pool's threads and give them each model once (its coefficients in shared memory, the threads'
+ * kernels compiled), so that the first large batch after a restart does not pay for it (seconds on two cores).
+ * Failures are logged, never fatal.
+ */
+export async function warmComputePool(models: readonly SurrogateModel[], pool: ComputePool, log: (line: string) => void = console.log): Promise<void> {
+  try {
+    const began = performance.now();
+    for (const model of models) {
+      // Enough rows that every thread gets some.
+      const zero = new Float64Array(2 * POOL_BATCH_THRESHOLD * model.nollIndices.length);
+      await pool.summariseBatch(model, zero);
+      await pool.evaluateBatch(model, zero);
+    }
+    if (models.length > 0) log(`[stillpoint] compute pool (${pool.threads} threads) ready with ${models.length} models in ${Math.round(performance.now() - began)} ms`);
+  } catch (error) {
+    log(`[stillpoint] could not warm the compute pool: ${(error as Error).message}`);
   }
 }

@@ -125,7 +125,11 @@ describe("an admin in the browser", () => {
       await row.getByLabel("Successor").selectOption("2");
       await shot(admin, "retire-form");
       await row.getByRole("button", { name: "Retire version 1" }).click();
+      // The version moves to the retired list, where the confirmation stays beside it.
+      await admin.waitForURL((url) => url.searchParams.get("view") === "retired");
       await expect(row.getByRole("status").textContent()).resolves.toMatch(/^Retired; \d+ notices? queued\.$/);
+      await expect(row.getByTestId("retirement-summary").textContent()).resolves.toContain("superseded by a larger generating set");
+      await shot(admin, "retired");
     });
     for (const [page, name] of [[admin, "version-admin"], [person, "version-person"]] as const) {
       await step(page, name, async () => {

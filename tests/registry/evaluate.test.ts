@@ -8,7 +8,7 @@ import { evaluationTarget, insertVersion, retireVersion, submitVersion } from "@
 import { nollToAnsi } from "@/lib/optics/zernike";
 import { runTtlTask } from "@/lib/parallel/ttlTask";
 import { createComputePool, type ComputePool } from "@/lib/parallel/computePool";
-import { evaluateWavefronts, modelCache, warmModelCache } from "@/lib/registry/evaluate";
+import { evaluateWavefronts, modelCache, warmComputePool, warmModelCache } from "@/lib/registry/evaluate";
 import { evaluateMap } from "@/lib/surrogate/evaluate";
 import { encodeModel } from "@/lib/surrogate/modelFile";
 import type { SurrogateModel } from "@/lib/surrogate/model";
@@ -220,5 +220,18 @@ describe("warmModelCache", () => {
     await warmModelCache(() => Promise.reject(new Error("database unreachable")), (line) => lines.push(line));
     expect(lines).toEqual(["[stillpoint] could not warm the model cache: database unreachable"]);
     expect(modelCache().size).toBe(size);
+  });
+});
+
+describe("warmComputePool", () => {
+  it("gives each model to the pool's threads once and says so; a failure is logged, not thrown", async () => {
+    const lines: string[] = [];
+    await warmComputePool([surrogate], pool, (line) => lines.push(line));
+    expect(lines).toEqual([expect.stringMatching(/^\[stillpoint\] compute pool \(2 threads\) ready with 1 models in \d+ ms$/)]);
+    // A pool whose threads cannot start.
+    const broken = { threads: 2, summariseBatch: () => Promise.reject(new Error("worker failed to start")) } as unknown as ComputePool;
+    const failures: string[] = [];
+    await warmComputePool([surrogate], broken, (line) => failures.push(line));
+    expect(failures).toEqual(["[stillpoint] could not warm the compute pool: worker failed to start"]);
   });
 });

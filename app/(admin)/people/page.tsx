@@ -56,7 +56,7 @@ export default async function PeoplePage() {
                         {person.id !== user.id && <AccountSwitch userId={person.id} email={person.email} disabled={person.disabledAt !== null} />}
                       </div>
                     </td>
-                    <td className={`${tdClass} text-xs`}>
+                    <td className={`${tdClass} whitespace-nowrap text-xs`}>
                       <Link href={`/audit?person=${encodeURIComponent(person.email)}`} className={linkClass}>
                         audit log
                       </Link>

@@ -33,12 +33,15 @@ export function RolesEditor({ userId, email, roles }: { userId: number; email: s
   return (
     <div className="flex flex-col gap-1" role="group" aria-label={`Roles of ${email}`}>
       <div className="flex flex-wrap items-center gap-x-3 gap-y-1">
-        {ROLES.map((role) => (
-          <label key={role} className="flex items-center gap-1 font-mono text-xs">
-            <input type="checkbox" checked={chosen.includes(role)} onChange={(e) => toggle(role, e.target.checked)} disabled={busy} />
-            {role}
-          </label>
-        ))}
+        {/* Two columns of two, the same in every row, whatever the table's width. */}
+        <div className="grid grid-cols-2 gap-x-3 gap-y-1">
+          {ROLES.map((role) => (
+            <label key={role} className="flex items-center gap-1 font-mono text-xs">
+              <input type="checkbox" checked={chosen.includes(role)} onChange={(e) => toggle(role, e.target.checked)} disabled={busy} />
+              {role}
+            </label>
+          ))}
+        </div>
         {changed && (
           <button type="button" onClick={save} disabled={busy} className="rounded border border-line px-2 py-0.5 text-xs hover:bg-sunken disabled:opacity-60">
             {busy ? "Saving…" : "Save roles"}

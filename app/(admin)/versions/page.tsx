@@ -1,4 +1,5 @@
 import type { Metadata } from "next";
+import { z } from "zod";
 import Link from "next/link";
 import { EmptyState, linkClass, tdClass, thClass } from "@/components/empty-state";
 import { formatTime } from "@/components/format";
@@ -7,7 +8,7 @@ import { requirePageActor } from "@/components/server/page";
 import { StateBadge } from "@/components/state-badge";
 import { NOTICE_WINDOW_DAYS, recentUsageByVersion } from "@/lib/db/tokens";
 import { listAllVersions, type VersionOverview } from "@/lib/db/versions";
-import { RetireForm } from "./retire-form";
+import { RetiredStatus, RetireForm } from "./retire-form";
 
 export const metadata: Metadata = { title: "Versions" };
 
@@ -16,14 +17,19 @@ type SearchParams = Promise<Record<string, string | string[] | undefined>>;
 const VIEWS = { live: "live", retired: "retired", all: "all" } as const;
 type View = keyof typeof VIEWS;
 
+const justRetiredSchema = z.object({ version: z.string().max(200), notices: z.coerce.number().int().min(0).max(1_000_000) });
+
 /** How far ahead the retire form proposes the sunset (common practice, no source: half a year of notice). */
 const DEFAULT_SUNSET_DAYS = 180;
 
 /** Live and retired versions across every model (admins); a released version can be retired from here. */
 export default async function VersionsPage({ searchParams }: { searchParams: SearchParams }) {
   const { actor } = await requirePageActor("admin");
-  const raw = (await searchParams).view;
+  const params = await searchParams;
+  const raw = params.view;
   const view: View = typeof raw === "string" && raw in VIEWS ? (raw as View) : "live";
+  // After a retirement from this page: which version it was and how many notices it queued (shown beside it).
+  const just = justRetiredSchema.safeParse({ version: params.retired, notices: params.notices });
   const now = new Date();
   const [all, usage] = await Promise.all([listAllVersions(actor), recentUsageByVersion(now)]);
   const shown = all.filter((v) => (view === "all" ? true : view === "retired" ? v.state === "retired" : v.state !== "retired"));
@@ -92,13 +98,18 @@ export default async function VersionsPage({ searchParams }: { searchParams: Sea
                       {v.order}, {v.termCount}
                     </td>
                     <td className={`${tdClass} whitespace-nowrap font-mono text-xs`}>{formatTime(v.createdAt)}</td>
-                    <td className={`${tdClass} text-xs`}>{use ? `${use.tokens} tokens of ${use.people} people` : "none"}</td>
+                    <td className={`${tdClass} text-xs`}>
+                      {use ? `${use.tokens === 1 ? "1 token" : `${use.tokens} tokens`} of ${use.people === 1 ? "1 person" : `${use.people} people`}` : "none"}
+                    </td>
                     <td className={`${tdClass} text-xs`}>
                       {v.retirement ? (
-                        <span data-testid="retirement-summary">
-                          {formatTime(v.retirement.retiredAt)}: {v.retirement.reason}; sunset {formatTime(v.retirement.sunsetAt)}
-                          {v.retirement.successorVersion !== null && `; successor v${v.retirement.successorVersion}`}
-                        </span>
+                        <>
+                          <span data-testid="retirement-summary">
+                            {formatTime(v.retirement.retiredAt)}: {v.retirement.reason}; sunset {formatTime(v.retirement.sunsetAt)}
+                            {v.retirement.successorVersion !== null && `; successor v${v.retirement.successorVersion}`}
+                          </span>
+                          {just.success && just.data.version === `${v.model}/${v.version}` && <RetiredStatus notices={just.data.notices} />}
+                        </>
                       ) : v.state === "released" ? (
                         <RetireForm
                           slug={v.model}

@@ -61,17 +61,12 @@ export function RetireForm({
     const data = await submit(() => retireVersionAction(slug, version, values));
     if (data) {
       setDone(data.notices);
-      router.refresh();
+      // The version leaves the live list: show it among the retired ones, with what was queued beside it.
+      router.replace(`/versions?view=retired&retired=${encodeURIComponent(`${slug}/${version}`)}&notices=${data.notices}`);
     }
   });
 
-  if (done !== null) {
-    return (
-      <p role="status" className="text-xs text-good">
-        Retired; {done === 1 ? "1 notice" : `${done} notices`} queued.
-      </p>
-    );
-  }
+  if (done !== null) return <RetiredStatus notices={done} />;
   if (!open) {
     return (
       <button type="button" onClick={() => setOpen(true)} className="rounded border border-line px-2 py-0.5 text-xs hover:bg-sunken" aria-label={`Retire ${slug} version ${version}…`}>
@@ -86,7 +81,7 @@ export function RetireForm({
       <Field id={`${id}-reason`} label="Reason" hint="Shown on the version page and in the notices." error={e("reason")}>
         <textarea rows={2} className={inputClass.replace(" font-mono", "")} {...describedBy(`${id}-reason`, e("reason"))} {...register("reason")} />
       </Field>
-      <Field id={`${id}-sunset`} label="Sunset" hint="Evaluation ends at 00:00 UTC that day (410 after)." error={e("sunsetAt")}>
+      <Field id={`${id}-sunset`} label="Sunset" hint="Evaluation ends at 00:00 UTC that day; after it, requests are answered 410 Gone." error={e("sunsetAt")}>
         <input type="date" className={inputClass} {...describedBy(`${id}-sunset`, e("sunsetAt"))} {...register("sunsetAt")} />
       </Field>
       <Field id={`${id}-successor`} label="Successor" error={e("successorVersion")} hint="Named in the notices and on the version page.">
@@ -109,5 +104,14 @@ export function RetireForm({
         </button>
       </div>
     </form>
+  );
+}
+
+/** What a retirement queued, beside the version it retired (in the form, then on the retired list it moves to). */
+export function RetiredStatus({ notices }: { notices: number }) {
+  return (
+    <p role="status" className="text-xs text-good">
+      Retired; {notices === 1 ? "1 notice" : `${notices} notices`} queued.
+    </p>
   );
 }

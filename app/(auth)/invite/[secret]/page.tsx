@@ -23,10 +23,12 @@ export default async function AcceptInvitationPage({ params }: { params: Promise
         <h1 className="mb-1 mt-6 text-xl font-semibold">Accept the invitation</h1>
         {invitation.ok ? (
           <>
-            <div className="mb-6 flex flex-wrap items-center gap-2 text-sm text-muted">
-              <span>Your roles:</span>
-              <RoleList roles={invitation.roles} />
-              <span>· the link works until {formatTime(invitation.expiresAt)} UTC.</span>
+            <div className="mb-6 flex flex-col gap-1 text-sm text-muted">
+              <div className="flex flex-wrap items-center gap-2">
+                <span>Your roles:</span>
+                <RoleList roles={invitation.roles} />
+              </div>
+              <p>The link works once, until {formatTime(invitation.expiresAt)} UTC.</p>
             </div>
             <AcceptForm secret={secret} email={invitation.email} />
           </>
