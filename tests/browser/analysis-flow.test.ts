@@ -3,8 +3,11 @@ import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { closeDb } from "@/lib/db/knex";
 import { SURROGATE_NOTICE } from "@/lib/surrogate/model";
 import { DEMO_PASSWORD } from "@/seeds/01_demo_accounts";
+import { closeQueueClients } from "@/lib/queue/enqueue";
+import type { WorkerHandle } from "@/lib/queue/worker";
 import { startAppServer, type AppServer } from "../helpers/app-server";
 import { launchBrowser, step } from "../helpers/browser";
+import { inProcessWorker } from "../helpers/registry";
 
 // A viewer on the analysis page of the demo's released version, in a real browser against the production build: the
 // worst case with its maps, the maximising wavefront propagated exactly, the modes and the noise budget.
@@ -13,9 +16,11 @@ let server: AppServer;
 let browser: Browser;
 let context: BrowserContext;
 let page: Page;
+let worker: WorkerHandle;
 
 beforeAll(async () => {
   server = await startAppServer();
+  worker = inProcessWorker(`analysis-browser-${process.pid}`);
   browser = await launchBrowser();
   context = await browser.newContext({ baseURL: server.baseUrl, viewport: { width: 1400, height: 1000 } });
   context.setDefaultTimeout(30_000);
@@ -28,6 +33,8 @@ beforeAll(async () => {
 });
 
 afterAll(async () => {
+  await worker?.close(true);
+  await closeQueueClients();
   await context?.close();
   await browser?.close();
   await server?.close();
@@ -91,4 +98,19 @@ describe("the analysis page", () => {
       await expect(page.getByTestId("fit-summary").textContent()).resolves.toMatch(/residual RMS [0-9.e-]+ nm/);
     });
   });
+
+  it("queues a Monte Carlo of the requirements whose run page follows its progress to the end", async () => {
+    await step(page, "analysis-monte-carlo-run-page", async () => {
+      await page.getByLabel("Monte Carlo samples").fill("65536");
+      await page.getByTestId("requirements-run").click();
+      const link = page.getByTestId("requirements-progress").getByRole("link");
+      await link.waitFor();
+      await link.click();
+      await page.waitForURL(/\/runs\/\d+$/);
+      // The page polls while the run is queued or running, even when its first answer equals what the server drew.
+      await page.locator('[data-testid="run-status"][data-state="succeeded"]').waitFor({ timeout: 180_000 });
+      await expect(page.getByTestId("run-samples").textContent()).resolves.toBe("65536 / 65536 samples");
+      await expect(page.getByRole("progressbar", { name: "Monte Carlo progress" }).getAttribute("aria-valuenow")).resolves.toBe("100");
+    });
+  }, 240_000);
 });

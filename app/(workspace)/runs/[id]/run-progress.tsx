@@ -26,13 +26,17 @@ async function fetchRun(url: string): Promise<RunDetail> {
 export function RunProgress({ initial, mayCancel }: { initial: RunDetail; mayCancel: boolean }) {
   const { data, error, mutate } = useSWR(`/api/v1/runs/${initial.id}`, fetchRun, {
     fallbackData: initial,
-    refreshInterval: (latest) => (isActive(latest) ? POLL_MS : 0),
+    // SWR asks before its first fetch, with nothing cached yet: judge by the server's answer until then. (Otherwise,
+    // when the first fetch returns what the server rendered, nothing re-renders and the polling never starts.)
+    refreshInterval: (latest) => (isActive(latest ?? initial) ? POLL_MS : 0),
     revalidateOnFocus: true,
   });
   const run = data ?? initial;
   const [cancelError, setCancelError] = useState<string | null>(null);
   const [cancelling, setCancelling] = useState(false);
   const percent = Math.round(run.progress.fraction * 1000) / 10;
+  // A Monte Carlo run counts wavefronts evaluated on the model; training and pruning runs count exact maps.
+  const unit = run.kind === "monte-carlo" ? "samples" : "exact maps";
 
   async function cancel() {
     setCancelling(true);
@@ -53,7 +57,7 @@ export function RunProgress({ initial, mayCancel }: { initial: RunDetail; mayCan
         <div className="mb-2 flex flex-wrap items-center gap-3 text-sm">
           <StateBadge state={run.state} />
           <span className="font-mono" data-testid="run-samples">
-            {run.progress.done} / {run.progress.total} exact maps
+            {run.progress.done} / {run.progress.total} {unit}
           </span>
           <span className="font-mono text-muted">{percent} %</span>
           <span className="ml-auto flex items-center gap-3">
@@ -66,11 +70,11 @@ export function RunProgress({ initial, mayCancel }: { initial: RunDetail; mayCan
         </div>
         <div
           role="progressbar"
-          aria-label="Exact propagation progress"
+          aria-label={run.kind === "monte-carlo" ? "Monte Carlo progress" : "Exact propagation progress"}
           aria-valuemin={0}
           aria-valuemax={100}
           aria-valuenow={percent}
-          aria-valuetext={`${percent} percent, ${run.progress.done} of ${run.progress.total} maps`}
+          aria-valuetext={`${percent} percent, ${run.progress.done} of ${run.progress.total} ${unit}`}
           className="h-3 w-full overflow-hidden rounded-sm bg-sunken"
         >
           <div
@@ -82,7 +86,7 @@ export function RunProgress({ initial, mayCancel }: { initial: RunDetail; mayCan
           <div>
             <dt className="text-xs text-muted">Rate</dt>
             <dd className="font-mono" data-testid="run-rate">
-              {run.progress.perSecond === null ? "–" : `${formatNumber(run.progress.perSecond, 3)} maps/s`}
+              {run.progress.perSecond === null ? "–" : `${formatNumber(run.progress.perSecond, 3)} ${run.kind === "monte-carlo" ? "samples" : "maps"}/s`}
             </dd>
           </div>
           <div>
