@@ -11,6 +11,9 @@ import { serverComputePool } from "../lib/registry/serverPool.ts";
 import { directRoute } from "./direct-routes.ts";
 import { answerDatabaseUnreachable, isPageRequest } from "./unavailable-page.ts";
 
+/** Released versions (the newest) run through every evaluation path before the server listens. */
+const WARM_BEFORE_LISTENING = 3;
+
 export interface AppServerOptions {
   /** The project folder holding the production build (.next). */
   dir: string;
@@ -41,13 +44,13 @@ export async function startAppServer(options: AppServerOptions): Promise<Running
   // instrumentation.ts warms the framework's copy of lib/; the direct path runs this server's own copy, whose
   // kernels, packed coefficients and code paths are made on first use. Before listening: the pool's first
   // connections (lib/db/knex.ts warmPool; a database that is down now does not stop the start), then every evaluation
-  // path on the released versions (the decoded models are shared), so the first request after a restart costs what
-  // any other does.
+  // path on the newest released versions (the decoded models are shared), so the first request after a restart costs
+  // what any other does. The other released versions are decoded in the background by instrumentation.ts.
   const pool = await warmPool();
   if (!options.quiet && pool.opened < pool.wanted) console.error(`[stillpoint] database: ${pool.opened} of ${pool.wanted} connections opened at start`);
   warmRateLimiter();
   const log = options.quiet ? () => {} : console.log;
-  const models = await warmModelCache(() => releasedEvaluationTargets(), log);
+  const models = await warmModelCache(async () => (await releasedEvaluationTargets()).slice(0, WARM_BEFORE_LISTENING), log);
   // The worker pool for large batches starts in the background: its threads take seconds, and nothing but a batch
   // needs them (one that arrives first waits for the rest of the start).
   if (options.startComputePool) void warmComputePool(models, serverComputePool(), log);

@@ -1,4 +1,5 @@
 import { readdirSync, readFileSync } from "node:fs";
+import { getPriority } from "node:os";
 import { afterAll, describe, expect, it } from "vitest";
 import { TtlPropagator, type OpticalSetup } from "@/lib/optics/index.ts";
 import { createComputePool } from "@/lib/parallel/index.ts";
@@ -118,15 +119,18 @@ describe("createComputePool niceIncrement", () => {
     readdirSync("/proc/self/task").map((tid) => Number(readFileSync(`/proc/self/task/${tid}/stat`, "utf8").split(") ")[1].split(" ")[16]));
 
   it.runIf(process.platform === "linux")("runs the pool's threads at the lower priority and leaves the calling thread alone", async () => {
-    const before = threadNiceValues().filter((nice) => nice === 7).length;
+    // Relative to this process's own priority (the suite may itself run under nice); nice stops at 19.
+    const base = getPriority();
+    const lowered = Math.min(19, base + 7);
+    const before = threadNiceValues().filter((nice) => nice === lowered).length;
     const niced = createComputePool({ threads: 2, niceIncrement: 7 });
     try {
       // The threads start with the first task; two tasks at once occupy both.
       const input = randomDesign(4, { size: 64, maxRmsNm: 15, seed: 9 });
       await Promise.all([niced.evaluateBatch(model, input), niced.evaluateBatch(model, input)]);
       // The two pool threads, and any thread they start (which inherits their priority).
-      expect(threadNiceValues().filter((nice) => nice === 7).length - before).toBeGreaterThanOrEqual(2);
-      expect(readFileSync("/proc/thread-self/stat", "utf8").split(") ")[1].split(" ")[16]).toBe("0");
+      expect(threadNiceValues().filter((nice) => nice === lowered).length - before).toBeGreaterThanOrEqual(2);
+      expect(Number(readFileSync("/proc/thread-self/stat", "utf8").split(") ")[1].split(" ")[16])).toBe(base);
     } finally {
       await niced.close();
     }

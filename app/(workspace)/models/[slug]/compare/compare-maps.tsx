@@ -98,8 +98,12 @@ export function CompareMaps({
     setBusy(true);
     setError(null);
     try {
-      const [ra, rb] = await Promise.all([evaluate(slug, a, parsed.coefficientsNm), evaluate(slug, b, parsed.coefficientsNm)]);
-      setAnswer({ a: ra, b: rb, wavefront: asText(parsed.coefficientsNm) });
+      // Both answers awaited, so that a wavefront both versions refuse is reported for A, then B, whichever came first.
+      const [ra, rb] = await Promise.allSettled([evaluate(slug, a, parsed.coefficientsNm), evaluate(slug, b, parsed.coefficientsNm)]);
+      if (ra.status === "rejected" || rb.status === "rejected") {
+        throw new Error([ra, rb].flatMap((r) => (r.status === "rejected" ? [(r.reason as Error).message] : [])).join("; "));
+      }
+      setAnswer({ a: ra.value, b: rb.value, wavefront: asText(parsed.coefficientsNm) });
     } catch (caught) {
       setError(`The maps could not be evaluated: ${(caught as Error).message}`);
     } finally {
