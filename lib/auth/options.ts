@@ -6,7 +6,7 @@ import { findCredentialsByEmail, getUser, normaliseEmail } from "../db/users";
 import { signInSchema } from "../validation/auth";
 import { verifyPassword } from "./password";
 import { isRole } from "../access/roles";
-import { SIGN_IN_RATE_LIMITED } from "./messages";
+import { ACCOUNT_DISABLED, SIGN_IN_RATE_LIMITED } from "./messages";
 import { requestAddress } from "./address";
 import { clearSignInFailures, recordFailedSignIn, signInBlockedFor } from "./signInLimit";
 
@@ -34,6 +34,7 @@ async function authorize(raw: Record<string, unknown> | undefined, request: Auth
       action: "sign-in.refused",
       detail: { email: account, address, ...(credentials?.disabled && valid ? { reason: "disabled" } : {}) },
     });
+    if (credentials?.disabled && valid) throw new Error(ACCOUNT_DISABLED);
     return null;
   }
   const user = await getUser(credentials.id);

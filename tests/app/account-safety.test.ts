@@ -1,7 +1,7 @@
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { encode } from "next-auth/jwt";
 import { sessionActor } from "@/lib/access/actor";
-import { SIGN_IN_RATE_LIMITED, SIGN_IN_RATE_LIMITED_MESSAGE } from "@/lib/auth/messages";
+import { ACCOUNT_DISABLED, ACCOUNT_DISABLED_MESSAGE, SIGN_IN_RATE_LIMITED, SIGN_IN_RATE_LIMITED_MESSAGE } from "@/lib/auth/messages";
 import { hashPassword } from "@/lib/auth/password";
 import { recordFailedSignIn } from "@/lib/auth/signInLimit";
 import { getConfig } from "@/lib/config";
@@ -74,8 +74,11 @@ describe("disabled accounts", () => {
     expect(byToken.status).toBe(401);
     expect((await byToken.json()).detail).toBe("The token's owner has been disabled.");
 
+    // The right password learns that the account is disabled, and the sign-in page says so; a wrong one does not.
     const again = await signInFrom(server.agent(), `10.1.${counter}.1`, email, PASSWORD);
-    expect(again.searchParams.get("error")).toBe("CredentialsSignin");
+    expect(again.searchParams.get("error")).toBe(ACCOUNT_DISABLED);
+    expect(decode((await server.agent().get(`/sign-in?error=${ACCOUNT_DISABLED}`).expect(200)).text)).toContain(ACCOUNT_DISABLED_MESSAGE);
+    expect((await signInFrom(server.agent(), `10.1.${counter}.2`, email, "not the password")).searchParams.get("error")).toBe("CredentialsSignin");
 
     const events = await db()("audit_events").where({ action: "user.disable", subject_id: String(id) });
     expect(events).toHaveLength(1);
