@@ -98,6 +98,8 @@ describe("an admin in the browser", () => {
       await shot(person, "accept");
       await person.getByRole("button", { name: "Create my account" }).click();
       await expect(person.getByTestId("invitation-accepted").textContent()).resolves.toContain(`Your account ${invitee} is ready.`);
+      // What the used link offered (roles, expiry) is gone with it.
+      await expect(person.getByText("The link works once").count()).resolves.toBe(0);
       await person.getByRole("link", { name: "Sign in" }).click();
       await person.waitForURL((url) => url.pathname === "/sign-in");
       await person.getByLabel("E-mail").fill(invitee);

@@ -1,7 +1,7 @@
 "use client";
 
 import Link from "next/link";
-import { useState } from "react";
+import { useState, type ReactNode } from "react";
 import { useForm } from "react-hook-form";
 import { describedBy, Field, FormError, inputClass, SubmitButton } from "@/components/forms/field";
 import { errorAt, schemaResolver, useActionErrors } from "@/components/forms/use-action-form";
@@ -10,7 +10,8 @@ import { acceptInvitationAction } from "./actions";
 
 const plainInput = inputClass.replace(" font-mono", "");
 
-export function AcceptForm({ secret, email }: { secret: string; email: string }) {
+/** The form of an open invitation; `children` (what the link offers: roles, expiry) show until it is accepted. */
+export function AcceptForm({ secret, email, children }: { secret: string; email: string; children?: ReactNode }) {
   const [accepted, setAccepted] = useState<string | null>(null);
   const {
     register,
@@ -40,23 +41,26 @@ export function AcceptForm({ secret, email }: { secret: string; email: string })
   }
   const e = (path: string) => errorAt(errors, path);
   return (
-    <form onSubmit={onSubmit} noValidate className="flex flex-col gap-3" aria-label="Accept the invitation">
-      <FormError message={formError} />
-      <p className="text-sm">
-        E-mail: <span className="font-mono">{email}</span>
-      </p>
-      <Field id="accept-name" label="Your name" hint="As the team should see it." error={e("name")}>
-        <input autoComplete="name" className={plainInput} {...describedBy("accept-name", e("name"))} {...register("name")} />
-      </Field>
-      <Field id="accept-password" label="Password" hint="At least 12 characters." error={e("password")}>
-        <input type="password" autoComplete="new-password" className={plainInput} {...describedBy("accept-password", e("password"))} {...register("password")} />
-      </Field>
-      <Field id="accept-confirm" label="Password again" error={e("confirm")}>
-        <input type="password" autoComplete="new-password" className={plainInput} {...describedBy("accept-confirm", e("confirm"), false)} {...register("confirm")} />
-      </Field>
-      <SubmitButton busy={isSubmitting} busyText="Creating your account…">
-        Create my account
-      </SubmitButton>
-    </form>
+    <>
+      {children}
+      <form onSubmit={onSubmit} noValidate className="flex flex-col gap-3" aria-label="Accept the invitation">
+        <FormError message={formError} />
+        <p className="text-sm">
+          E-mail: <span className="font-mono">{email}</span>
+        </p>
+        <Field id="accept-name" label="Your name" hint="As the team should see it." error={e("name")}>
+          <input autoComplete="name" className={plainInput} {...describedBy("accept-name", e("name"))} {...register("name")} />
+        </Field>
+        <Field id="accept-password" label="Password" hint="At least 12 characters." error={e("password")}>
+          <input type="password" autoComplete="new-password" className={plainInput} {...describedBy("accept-password", e("password"))} {...register("password")} />
+        </Field>
+        <Field id="accept-confirm" label="Password again" error={e("confirm")}>
+          <input type="password" autoComplete="new-password" className={plainInput} {...describedBy("accept-confirm", e("confirm"), false)} {...register("confirm")} />
+        </Field>
+        <SubmitButton busy={isSubmitting} busyText="Creating your account…">
+          Create my account
+        </SubmitButton>
+      </form>
+    </>
   );
 }

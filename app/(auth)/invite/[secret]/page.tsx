@@ -22,7 +22,7 @@ export default async function AcceptInvitationPage({ params }: { params: Promise
         </p>
         <h1 className="mb-1 mt-6 text-xl font-semibold">Accept the invitation</h1>
         {invitation.ok ? (
-          <>
+          <AcceptForm secret={secret} email={invitation.email}>
             <div className="mb-6 flex flex-col gap-1 text-sm text-muted">
               <div className="flex flex-wrap items-center gap-2">
                 <span>Your roles:</span>
@@ -30,8 +30,7 @@ export default async function AcceptInvitationPage({ params }: { params: Promise
               </div>
               <p>The link works once, until {formatTime(invitation.expiresAt)} UTC.</p>
             </div>
-            <AcceptForm secret={secret} email={invitation.email} />
-          </>
+          </AcceptForm>
         ) : (
           <div className="mt-4 flex flex-col gap-3">
             <p role="alert" className="rounded border border-fault bg-fault-soft px-3 py-2 text-sm text-fault" data-testid="invitation-refused">
