@@ -6,7 +6,7 @@ import { DEMO_PASSWORD } from "@/seeds/01_demo_accounts";
 import { closeQueueClients } from "@/lib/queue/enqueue";
 import type { WorkerHandle } from "@/lib/queue/worker";
 import { startAppServer, type AppServer } from "../helpers/app-server";
-import { launchBrowser, step } from "../helpers/browser";
+import { launchBrowser, signedInPage, step } from "../helpers/browser";
 import { inProcessWorker } from "../helpers/registry";
 
 // A viewer on the analysis page of the demo's released version, in a real browser against the production build: the
@@ -24,12 +24,7 @@ beforeAll(async () => {
   browser = await launchBrowser();
   context = await browser.newContext({ baseURL: server.baseUrl, viewport: { width: 1400, height: 1000 } });
   context.setDefaultTimeout(30_000);
-  page = await context.newPage();
-  await page.goto("/sign-in");
-  await page.getByLabel("E-mail").fill("viewer@velora.test");
-  await page.getByLabel("Password").fill(DEMO_PASSWORD);
-  await page.getByRole("button", { name: "Sign in" }).click();
-  await page.waitForURL((url) => url.pathname === "/");
+  page = await signedInPage(context, "viewer@velora.test", DEMO_PASSWORD);
 });
 
 afterAll(async () => {

@@ -4,7 +4,7 @@ import { closeDb } from "@/lib/db/knex";
 import { SURROGATE_NOTICE } from "@/lib/surrogate/model";
 import { DEMO_PASSWORD } from "@/seeds/01_demo_accounts";
 import { startAppServer, type AppServer } from "../helpers/app-server";
-import { launchBrowser, step } from "../helpers/browser";
+import { launchBrowser, signedInPage, step } from "../helpers/browser";
 
 // A viewer in a real browser (Debian's chromium) against the production build: a token made on the tokens page works
 // from a plain fetch outside the browser until it is revoked there; the playground's maps follow a slider.
@@ -20,12 +20,7 @@ beforeAll(async () => {
   browser = await launchBrowser();
   context = await browser.newContext({ baseURL: server.baseUrl, viewport: { width: 1400, height: 1000 } });
   context.setDefaultTimeout(20_000);
-  page = await context.newPage();
-  await page.goto("/sign-in");
-  await page.getByLabel("E-mail").fill("viewer@velora.test");
-  await page.getByLabel("Password").fill(DEMO_PASSWORD);
-  await page.getByRole("button", { name: "Sign in" }).click();
-  await page.waitForURL((url) => url.pathname === "/");
+  page = await signedInPage(context, "viewer@velora.test", DEMO_PASSWORD);
 });
 
 afterAll(async () => {

@@ -5,7 +5,7 @@ import { getVersion } from "@/lib/db/versions";
 import { SURROGATE_NOTICE } from "@/lib/surrogate/model";
 import { DEMO_PASSWORD } from "@/seeds/01_demo_accounts";
 import { startAppServer, type AppServer } from "../helpers/app-server";
-import { launchBrowser, step } from "../helpers/browser";
+import { launchBrowser, signedInPage, step } from "../helpers/browser";
 import { actorFor } from "../helpers/registry";
 
 // The reviewer's pictures in a real browser (Debian's chromium) against the production build: the version page's
@@ -21,12 +21,7 @@ beforeAll(async () => {
   browser = await launchBrowser();
   context = await browser.newContext({ baseURL: server.baseUrl, viewport: { width: 1400, height: 1000 }, acceptDownloads: true });
   context.setDefaultTimeout(20_000);
-  page = await context.newPage();
-  await page.goto("/sign-in");
-  await page.getByLabel("E-mail").fill("reviewer@velora.test");
-  await page.getByLabel("Password").fill(DEMO_PASSWORD);
-  await page.getByRole("button", { name: "Sign in" }).click();
-  await page.waitForURL((url) => url.pathname === "/");
+  page = await signedInPage(context, "reviewer@velora.test", DEMO_PASSWORD);
 });
 
 afterAll(async () => {

@@ -1,6 +1,6 @@
 import { mkdirSync } from "node:fs";
 import path from "node:path";
-import { chromium, type Browser, type Page } from "playwright-core";
+import { chromium, type Browser, type BrowserContext, type Page } from "playwright-core";
 import { REPO_ROOT } from "./test-database";
 
 /** Debian's chromium (scripts/test.sh installs the package when it is missing); playwright-core brings no browser. */
@@ -40,4 +40,15 @@ export async function step<T>(page: Page, name: string, action: () => Promise<T>
     if (error instanceof Error && saved) error.message += `\n(screenshot of the failing step: ${file})`;
     throw error;
   }
+}
+
+/** A new page of `context` signed in through the sign-in form, on the catalogue. */
+export async function signedInPage(context: BrowserContext, email: string, password: string): Promise<Page> {
+  const page = await context.newPage();
+  await page.goto("/sign-in");
+  await page.getByLabel("E-mail").fill(email);
+  await page.getByLabel("Password").fill(password);
+  await page.getByRole("button", { name: "Sign in" }).click();
+  await page.waitForURL((url) => url.pathname === "/");
+  return page;
 }
