@@ -163,26 +163,11 @@ export function createComputePool(options: { threads?: number; niceIncrement?: n
   const runEvaluation = async (model: SurrogateModel, coefficientsNm: ArrayLike<number>, summary: boolean): Promise<Float64Array> => {
     const samples = checkCoefficients(model, coefficientsNm, true);
     const width = summary ? MAP_SUMMARY_WIDTH : 2 * model.pointsPerAxis * model.pointsPerAxis;
-    const shared = sharedModel(model);
-    const input = new SharedArrayBuffer(Math.max(8, coefficientsNm.length * 8));
-    new Float64Array(input, 0, coefficientsNm.length).set(coefficientsNm);
-    const output = new SharedArrayBuffer(Math.max(8, samples * width * 8));
-    const share = Math.ceil(samples / threads);
-    const jobs: Promise<unknown>[] = [];
-    for (let rowStart = 0; rowStart < samples; rowStart += share) {
-      const task: ComputeTask = {
-        kind: "evaluate", summary, model: shared, input, inputLength: coefficientsNm.length, output, outputLength: samples * width,
-        rowStart, rowEnd: Math.min(samples, rowStart + share),
-      };
-      jobs.push(pool.run(task));
-    }
-    await Promise.all(jobs);
-    return new Float64Array(output, 0, samples * width);
+    return sharedRows("evaluate", model, coefficientsNm, samples, width, summary);
   };
 
-
   /** Rows of a batch shared out over the threads, input and `samples x width` output in shared memory. */
-  const sharedRows = async (kind: "evaluate" | "peaks", model: SurrogateModel, coefficientsNm: ArrayLike<number>, samples: number, width: number) => {
+  const sharedRows = async (kind: "evaluate" | "peaks", model: SurrogateModel, coefficientsNm: ArrayLike<number>, samples: number, width: number, summary = false) => {
     const shared = sharedModel(model);
     const input = new SharedArrayBuffer(Math.max(8, coefficientsNm.length * 8));
     new Float64Array(input, 0, coefficientsNm.length).set(coefficientsNm);
@@ -191,7 +176,7 @@ export function createComputePool(options: { threads?: number; niceIncrement?: n
     const jobs: Promise<unknown>[] = [];
     for (let rowStart = 0; rowStart < samples; rowStart += share) {
       const task: ComputeTask = {
-        kind, model: shared, input, inputLength: coefficientsNm.length, output, outputLength: samples * width,
+        kind, summary, model: shared, input, inputLength: coefficientsNm.length, output, outputLength: samples * width,
         rowStart, rowEnd: Math.min(samples, rowStart + share),
       };
       jobs.push(pool.run(task));
